@@ -31,7 +31,7 @@ export default tseslint.config(
     },
   },
   {
-    files: ['shared/cli/**', 'scripts/**', 'tests/**', 'server/scripts/**', 'bin/**'],
+    files: ['server/cli/**', 'scripts/**', 'tests/**', 'server/scripts/**', 'bin/**'],
     rules: { 'no-console': 'off' },
   },
 );

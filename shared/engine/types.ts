@@ -55,6 +55,8 @@ export interface Lineout {
   lineShape: LineShape;
   /** Number of saturated, hot or cosmic pixels replaced, for reporting. */
   rejectedPixels: number;
+  /** Per-pixel noise floor used for the variance (read noise, plus background shot noise when measured), counts rms. */
+  noiseFloorCounts?: number;
 }
 
 /** A detected peak in a lineout. */

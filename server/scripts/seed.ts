@@ -1,0 +1,138 @@
+/**
+ * Idempotent demo seed: `node --import tsx server/scripts/seed.ts` (DATABASE_URL as the server).
+ * The "Lindqvist Attosecond Lab", its people and both instruments are INVENTED demo data.
+ * Runs in one transaction and only inserts what is missing (ON CONFLICT DO NOTHING, or
+ * check-then-insert), so running it twice neither duplicates nor wipes anything.
+ */
+import { pathToFileURL } from 'node:url';
+import { and, eq, sql } from 'drizzle-orm';
+import type { InstrumentProfileInput } from '../../shared/api/instrument-profile.ts';
+import { instrumentProfileSchema } from '../../shared/api/instrument-profile.ts';
+import type { Role } from '../../shared/api/members.ts';
+import { createDb, createPool, type Db } from '../db/client.ts';
+import { runMigrations } from '../db/migrate.ts';
+import { instruments, memberships, users } from '../db/schema/index.ts';
+import { hashPassword } from '../auth/password.ts';
+
+/** The fixed demo sign-ins (the README lists them). */
+export const demoAccounts = [
+  { email: 'admin@orderly.test', password: 'admin-demo-pass', name: 'Astrid Admin (demo)', isAdmin: true },
+  { email: 'owner@orderly.test', password: 'owner-demo-pass', name: 'Olof Owner (demo)', isAdmin: false },
+  { email: 'scientist@orderly.test', password: 'scientist-demo-pass', name: 'Saga Scientist (demo)', isAdmin: false },
+  { email: 'student@orderly.test', password: 'student-demo-pass', name: 'Sten Student (demo)', isAdmin: false },
+  { email: 'viewer@orderly.test', password: 'viewer-demo-pass', name: 'Vera Viewer (demo)', isAdmin: false },
+] as const;
+
+/**
+ * Nominal profiles, invented for the demo but of realistic size. XUV: a 1200 l/mm flat-field
+ * grazing-incidence grating at 87° incidence, camera 235 mm away, 2048 × 13.5 µm pixels; the
+ * central ray at β = 77.1° gives about 10–32 nm across the chip, wavelength falling with pixel.
+ * VUV: a 1200 l/mm normal-incidence grating at 10°, 1 m to the camera, about 108–131 nm.
+ */
+export const demoInstruments: { name: string; description: string; profile: InstrumentProfileInput; members: Partial<Record<(typeof demoAccounts)[number]['email'], Role>> }[] = [
+  {
+    name: 'XUV flat-field spectrometer (demo)',
+    description: 'Invented demo instrument of the fictional Lindqvist Attosecond Lab: grazing-incidence flat-field spectrometer behind the HHG gas cell.',
+    profile: {
+      spectralAxis: 'x',
+      grooveDensityPerMm: 1200,
+      incidenceAngleDeg: 87,
+      detectorDistanceMm: 235,
+      pixelPitchUm: 13.5,
+      wavelengthIncreasesWithPixel: false,
+      detectorCenterPixel: 1023.5,
+      detectorAngleDeg: 77.1,
+      pixelCount: 2048,
+      notes: 'Invented demo data: nominal values only, not a real instrument.',
+    },
+    members: {
+      'owner@orderly.test': 'owner',
+      'scientist@orderly.test': 'scientist',
+      'student@orderly.test': 'student',
+      'viewer@orderly.test': 'viewer',
+    },
+  },
+  {
+    name: 'VUV normal-incidence spectrometer (demo)',
+    description: 'Invented demo instrument of the fictional Lindqvist Attosecond Lab: 1 m normal-incidence spectrometer for low harmonics.',
+    profile: {
+      spectralAxis: 'x',
+      grooveDensityPerMm: 1200,
+      incidenceAngleDeg: 10,
+      detectorDistanceMm: 1000,
+      pixelPitchUm: 13.5,
+      wavelengthIncreasesWithPixel: true,
+      detectorCenterPixel: 1023.5,
+      detectorAngleDeg: 1.7,
+      pixelCount: 2048,
+      notes: 'Invented demo data: nominal values only, not a real instrument.',
+    },
+    members: { 'owner@orderly.test': 'owner', 'scientist@orderly.test': 'scientist' },
+  },
+];
+
+/** Insert whatever of the demo is missing; returns how many rows were added. */
+export async function seedDemo(db: Db): Promise<{ users: number; instruments: number; memberships: number }> {
+  const added = { users: 0, instruments: 0, memberships: 0 };
+  const hashes = await Promise.all(demoAccounts.map((a) => hashPassword(a.password)));
+  await db.transaction(async (tx) => {
+    const ids = new Map<string, string>();
+    for (const [i, account] of demoAccounts.entries()) {
+      const inserted = await tx
+        .insert(users)
+        .values({ email: account.email, name: account.name, isAdmin: account.isAdmin, passwordHash: hashes[i]! })
+        .onConflictDoNothing()
+        .returning({ id: users.id });
+      added.users += inserted.length;
+      const [row] = await tx.select({ id: users.id }).from(users).where(sql`lower(${users.email}) = ${account.email}`);
+      ids.set(account.email, row!.id);
+    }
+    for (const demo of demoInstruments) {
+      const profile = instrumentProfileSchema.parse(demo.profile);
+      const inserted = await tx
+        .insert(instruments)
+        .values({ name: demo.name, description: demo.description, profile, pixelCount: profile.pixelCount, notes: 'Invented demo data.' })
+        .onConflictDoNothing({ target: instruments.name })
+        .returning({ id: instruments.id });
+      added.instruments += inserted.length;
+      const [instrument] = await tx.select({ id: instruments.id }).from(instruments).where(eq(instruments.name, demo.name));
+      for (const [email, role] of Object.entries(demo.members)) {
+        const userId = ids.get(email)!;
+        const rows = await tx
+          .insert(memberships)
+          .values({ userId, instrumentId: instrument!.id, role: role! })
+          .onConflictDoNothing()
+          .returning({ id: memberships.id });
+        added.memberships += rows.length;
+      }
+    }
+    // Sanity: the owner must own both demo instruments (a failed earlier run would show here).
+    const owned = await tx
+      .select({ id: memberships.id })
+      .from(memberships)
+      .where(and(eq(memberships.userId, ids.get('owner@orderly.test')!), eq(memberships.role, 'owner')));
+    if (owned.length < demoInstruments.length) console.warn('warning: owner@orderly.test does not own every demo instrument (changed by hand?)');
+  });
+  return added;
+}
+
+async function main(): Promise<void> {
+  const databaseUrl = process.env.DATABASE_URL ?? 'postgres://postgres@127.0.0.1:5479/orderly';
+  await runMigrations(databaseUrl);
+  const pool = createPool(databaseUrl, 2);
+  try {
+    const added = await seedDemo(createDb(pool));
+    console.log(`Seeded the invented "Lindqvist Attosecond Lab" demo: added ${added.users} users, ${added.instruments} instruments, ${added.memberships} memberships.`);
+    console.log('Demo sign-ins (invented demo accounts):');
+    for (const a of demoAccounts) console.log(`  ${a.email.padEnd(24)} ${a.password}${a.isAdmin ? '   (site admin)' : ''}`);
+  } finally {
+    await pool.end();
+  }
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
+  main().catch((error: unknown) => {
+    console.error(error instanceof Error ? error.message : error);
+    process.exit(1);
+  });
+}

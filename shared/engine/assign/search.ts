@@ -1,0 +1,279 @@
+/**
+ * The labelling search: seed hypotheses from pairs of strong neighbouring peaks, fit the physical
+ * grating model, grow the labelling outward with further matching peaks, refit, then test the
+ * leftovers as second-order lines. Each finished labelling is scored by −2 ln L (see score.ts).
+ *
+ * Physics used (common practice): harmonic q of a driver λ0 sits at λ0/q (first-order
+ * wavelength); a line in diffraction order m lands where m·λ lands in m = 1 (grating equation
+ * m·λ = d(sin α − sin β)).
+ */
+import { HC_EV_NM } from '../constants.ts';
+import { pixelToWavelengthNm } from '../grating.ts';
+import {
+  fitModel,
+  geometryOf,
+  predictPixel,
+  P_ANGLE,
+  P_CENTER,
+  P_DISTANCE,
+  P_DRIVER,
+  P_INCIDENCE,
+  P_TILT,
+  type ModelContext,
+  type ModelFit,
+  type ModelPoint,
+} from './model.ts';
+import type { Parity } from '../types.ts';
+
+/** A peak as the search sees it (index = position in the usable list). */
+export interface SearchPeak {
+  pixel: number;
+  sigmaPx: number;
+  snr: number;
+  /** Line area (counts), > 0. */
+  area: number;
+  spatialWidthPx: number;
+}
+
+export interface SearchContext {
+  model: ModelContext;
+  peaks: SearchPeak[];
+  parity: Parity;
+  angleKnown: boolean;
+  /** True when known lines with pixels fix the absolute scale (driver wavelength then free). */
+  anchored: boolean;
+  /** Known-wavelength points always in the fit. */
+  knownPoints: ModelPoint[];
+  /** Filter stack transmission at a photon energy. */
+  transmission: (energyEv: number) => number;
+  /** peak index → pinned harmonic (m = 1). */
+  pins: Map<number, number>;
+}
+
+/** A finished labelling. */
+export interface Labelling {
+  harmonic: Int32Array;
+  order: Int8Array;
+  fit: ModelFit;
+  /** Fit with the second-order lines included, same as `fit` when there are none. */
+  points: ModelPoint[];
+  pointPeak: number[];
+}
+
+/** Transmission below which a line cannot be detected (the filter stack is opaque there). */
+export const OPAQUE_TRANSMISSION = 1e-3;
+
+export function harmonicStep(parity: Parity): number {
+  return parity === 'odd' ? 2 : 1;
+}
+
+export function allowedHarmonic(parity: Parity, q: number): boolean {
+  return q >= 1 && (parity === 'all' || q % 2 === 1);
+}
+
+export function harmonicEnergyEv(lambda0Nm: number, q: number): number {
+  return (q * HC_EV_NM) / lambda0Nm;
+}
+
+/** Predicted lines of one diffraction order on the detector, sorted by pixel. */
+export interface LineSet {
+  harmonic: number[];
+  pixel: number[];
+}
+
+/** Range of first-order wavelengths that land on the detector under `p`. */
+function detectorWavelengthRange(ctx: SearchContext, p: ArrayLike<number>): [number, number] | null {
+  const g = geometryOf(ctx.model, p);
+  const n = ctx.model.pixelCount;
+  const a = pixelToWavelengthNm(g, -0.5);
+  const b = pixelToWavelengthNm(g, n - 0.5);
+  if (!Number.isFinite(a) || !Number.isFinite(b)) return null;
+  return [Math.min(a, b), Math.max(a, b)];
+}
+
+/** Lines of diffraction order m (harmonics allowed by parity, filters not opaque) on the detector. */
+export function predictLines(ctx: SearchContext, p: ArrayLike<number>, m: number): LineSet {
+  const range = detectorWavelengthRange(ctx, p);
+  const out: LineSet = { harmonic: [], pixel: [] };
+  if (!range) return out;
+  const lambda0 = p[P_DRIVER];
+  const qLo = Math.max(1, Math.ceil((m * lambda0) / range[1]));
+  const qHi = Math.min(2000, Math.floor((m * lambda0) / range[0]));
+  const items: [number, number][] = [];
+  for (let q = qLo; q <= qHi; q++) {
+    if (!allowedHarmonic(ctx.parity, q)) continue;
+    // Parity 'all': m = 2 of an even q lands exactly on m = 1 of q/2 — a blend, not a separate line.
+    if (m === 2 && ctx.parity === 'all' && q % 2 === 0) continue;
+    if (ctx.transmission(harmonicEnergyEv(lambda0, q)) < OPAQUE_TRANSMISSION) continue;
+    const px = predictPixel(ctx.model, p, (m * lambda0) / q);
+    if (Number.isFinite(px)) items.push([px, q]);
+  }
+  items.sort((x, y) => x[0] - y[0]);
+  for (const [px, q] of items) {
+    out.pixel.push(px);
+    out.harmonic.push(q);
+  }
+  return out;
+}
+
+/** Index of the predicted line nearest to `pixel`, or −1. */
+export function nearestLine(lines: LineSet, pixel: number): number {
+  const xs = lines.pixel;
+  if (xs.length === 0) return -1;
+  let lo = 0;
+  let hi = xs.length - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (xs[mid] < pixel) lo = mid;
+    else hi = mid;
+  }
+  return Math.abs(xs[lo] - pixel) <= Math.abs(xs[hi] - pixel) ? lo : hi;
+}
+
+/** Distance from line j to its nearest neighbour line, px. */
+export function localSpacing(lines: LineSet, j: number): number {
+  const xs = lines.pixel;
+  let s = Number.POSITIVE_INFINITY;
+  if (j > 0) s = Math.min(s, xs[j] - xs[j - 1]);
+  if (j < xs.length - 1) s = Math.min(s, xs[j + 1] - xs[j]);
+  return s;
+}
+
+export function labelledPoints(ctx: SearchContext, harmonic: Int32Array, order: Int8Array): { points: ModelPoint[]; pointPeak: number[] } {
+  const points: ModelPoint[] = [];
+  const pointPeak: number[] = [];
+  for (let i = 0; i < harmonic.length; i++) {
+    if (harmonic[i] <= 0) continue;
+    const pk = ctx.peaks[i];
+    points.push({ pixel: pk.pixel, sigmaPx: pk.sigmaPx, scale: order[i] / harmonic[i], fixedNm: 0 });
+    pointPeak.push(i);
+  }
+  for (const k of ctx.knownPoints) {
+    points.push(k);
+    pointPeak.push(-1);
+  }
+  return { points, pointPeak };
+}
+
+/** Which parameters to free for a fit of `count` points (groups freed as data allow). */
+export function freeParameters(ctx: SearchContext, count: number): number[] {
+  const free = [ctx.angleKnown ? P_CENTER : P_ANGLE, P_DISTANCE];
+  if (count >= 3) free.push(P_INCIDENCE);
+  if (count >= 5) free.push(P_TILT);
+  if (ctx.anchored && count >= 3) free.push(P_DRIVER);
+  return free;
+}
+
+function fitLabels(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>): { fit: ModelFit; points: ModelPoint[]; pointPeak: number[] } {
+  const { points, pointPeak } = labelledPoints(ctx, harmonic, order);
+  const free = freeParameters(ctx, points.length);
+  // Two stages: the shift/scale pair first, then everything free; this keeps LM out of the flat valley's far ends.
+  let fit = fitModel(ctx.model, points, start, free.slice(0, 2));
+  if (free.length > 2) fit = fitModel(ctx.model, points, fit.parameters, free);
+  return { fit, points, pointPeak };
+}
+
+/** Starting parameters that put harmonic q of peak i exactly on its pixel (shift only). */
+export function seedStart(ctx: SearchContext, peakIndex: number, q: number): Float64Array | null {
+  const p = Float64Array.from(ctx.model.nominal);
+  const lambda1 = p[P_DRIVER] / q;
+  const g = geometryOf(ctx.model, p);
+  const sinBeta = Math.sin((g.incidenceAngleDeg * Math.PI) / 180) - lambda1 / (1e6 / g.grooveDensityPerMm);
+  if (Math.abs(sinBeta) >= 1) return null;
+  if (ctx.angleKnown) {
+    const px = predictPixel(ctx.model, p, lambda1);
+    if (!Number.isFinite(px)) return null;
+    p[P_CENTER] += ctx.peaks[peakIndex].pixel - px;
+  } else {
+    const beta = Math.asin(sinBeta);
+    const sMm = (ctx.peaks[peakIndex].pixel - p[P_CENTER]) * g.pixelPitchUm * 1e-3;
+    const dir = g.wavelengthIncreasesWithPixel ? -1 : 1;
+    p[P_ANGLE] = ((beta - dir * Math.atan(sMm / g.detectorDistanceMm)) * 180) / Math.PI;
+  }
+  return p;
+}
+
+/** Grow window: a peak joins a labelling when it lies within this fraction of the local line spacing. */
+const GROW_WINDOW = 0.12;
+
+/**
+ * Grow a labelling from a seed: fit, predict first-order lines, add peaks that sit on a predicted
+ * line, refit, until nothing more joins. Then drop gross outliers.
+ */
+export function grow(ctx: SearchContext, seedHarmonic: Int32Array, start: ArrayLike<number>): Labelling | null {
+  const n = ctx.peaks.length;
+  const harmonic = Int32Array.from(seedHarmonic);
+  const order = new Int8Array(n);
+  for (let i = 0; i < n; i++) if (harmonic[i] > 0) order[i] = 1;
+  let params: ArrayLike<number> = start;
+  let state = fitLabels(ctx, harmonic, order, params);
+  for (let iter = 0; iter < 40; iter++) {
+    params = state.fit.parameters;
+    const lines = predictLines(ctx, params, 1);
+    if (lines.pixel.length === 0) return null;
+    const used = new Set<number>();
+    for (let i = 0; i < n; i++) if (harmonic[i] > 0) used.add(harmonic[i]);
+    const best = new Map<number, { peak: number; rel: number }>();
+    for (let i = 0; i < n; i++) {
+      if (harmonic[i] > 0) continue;
+      const j = nearestLine(lines, ctx.peaks[i].pixel);
+      if (j < 0) continue;
+      const q = lines.harmonic[j];
+      if (used.has(q)) continue;
+      const rel = Math.abs(ctx.peaks[i].pixel - lines.pixel[j]) / localSpacing(lines, j);
+      if (!(rel < GROW_WINDOW)) continue;
+      const prev = best.get(q);
+      // Two peaks on one line: keep the closer, weighted towards the stronger (m = 2 lines are weak).
+      const key = rel / Math.sqrt(Math.max(ctx.peaks[i].snr, 1));
+      if (!prev || key < prev.rel) best.set(q, { peak: i, rel: key });
+    }
+    if (best.size === 0) break;
+    // Grow outward: add the candidates nearest the labelled span first (few at a time while the
+    // model is still loosely constrained, all at once later).
+    const labelledPx: number[] = [];
+    for (let i = 0; i < n; i++) if (harmonic[i] > 0) labelledPx.push(ctx.peaks[i].pixel);
+    const lo = Math.min(...labelledPx);
+    const hi = Math.max(...labelledPx);
+    const cands = [...best.entries()].map(([q, v]) => {
+      const px = ctx.peaks[v.peak].pixel;
+      return { q, peak: v.peak, dist: px < lo ? lo - px : px > hi ? px - hi : 0 };
+    });
+    cands.sort((a, b) => a.dist - b.dist);
+    const take = labelledPx.length < 5 ? 2 : cands.length;
+    for (const c of cands.slice(0, take)) {
+      harmonic[c.peak] = c.q;
+      order[c.peak] = 1;
+    }
+    state = fitLabels(ctx, harmonic, order, params);
+  }
+  // Outlier removal: a labelled peak far off the fitted curve (relative to the fit's own scatter) is dropped.
+  for (let round = 0; round < 4; round++) {
+    const { fit, points, pointPeak } = state;
+    const m = points.length;
+    if (m < 4) break;
+    const z = points.map((pt, k) => Math.abs(fit.residualsPx[k] / pt.sigmaPx));
+    const sorted = [...z].sort((a, b) => a - b);
+    const median = sorted[Math.floor(sorted.length / 2)];
+    const scale = Math.max(1, median / 0.6745);
+    let worst = -1;
+    let worstZ = 0;
+    for (let k = 0; k < m; k++) {
+      const peak = pointPeak[k];
+      if (peak < 0 || ctx.pins.has(peak)) continue;
+      if (z[k] > 6 * scale && z[k] > worstZ) {
+        worst = peak;
+        worstZ = z[k];
+      }
+    }
+    if (worst < 0) break;
+    harmonic[worst] = 0;
+    order[worst] = 0;
+    state = fitLabels(ctx, harmonic, order, state.fit.parameters);
+  }
+  return { harmonic, order, fit: state.fit, points: state.points, pointPeak: state.pointPeak };
+}
+
+/** Refit a labelling including second-order labels. */
+export function refit(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>): { fit: ModelFit; points: ModelPoint[]; pointPeak: number[] } {
+  return fitLabels(ctx, harmonic, order, start);
+}

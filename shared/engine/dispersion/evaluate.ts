@@ -1,0 +1,241 @@
+/**
+ * Evaluate a stored Calibration: pixel → wavelength with a 1-σ band, its local dispersion, and
+ * the inverse wavelength → pixel. Works for both models.
+ *
+ * Convention: both models map a pixel to the FIRST-ORDER wavelength λ₁(p). A line of true
+ * wavelength λ diffracted into order m lands where m·λ lands in first order (m·λ = d(sin α − sin β)).
+ */
+import { EngineError } from '../errors.ts';
+import { wavelengthToPixel } from '../grating.ts';
+import type { Calibration, GratingGeometry } from '../types.ts';
+import { chebyshevDerivative, chebyshevValue } from './chebyshev.ts';
+
+export interface EvaluatedCalibration {
+  /** First-order wavelength at each pixel, nm. */
+  wavelengthNm: Float64Array;
+  /** 1-σ: √(J Σ Jᵀ + (λ·scaleSigmaRelative)²), nm. */
+  wavelengthSigmaNm: Float64Array;
+}
+
+/** The names of GratingGeometry entries a grating fit may free. */
+export type GratingParameter = 'incidenceAngleDeg' | 'detectorDistanceMm' | 'detectorAngleDeg' | 'detectorTiltDeg' | 'detectorCenterPixel';
+
+export const GRATING_PARAMETERS: readonly GratingParameter[] = ['incidenceAngleDeg', 'detectorDistanceMm', 'detectorAngleDeg', 'detectorTiltDeg', 'detectorCenterPixel'];
+
+/** A copy of `g` with the named entries set to `values`. */
+export function withParameters(g: GratingGeometry, names: readonly string[], values: ArrayLike<number>): GratingGeometry {
+  const out: GratingGeometry = { ...g };
+  for (let j = 0; j < names.length; j++) {
+    const name = names[j] as GratingParameter;
+    if (!GRATING_PARAMETERS.includes(name)) throw new EngineError('invalid_input', `Unknown grating parameter "${names[j]}".`);
+    out[name] = values[j];
+  }
+  return out;
+}
+
+/** Finite-difference step for a geometry parameter: small against its scale, far above rounding. */
+export function parameterStep(value: number): number {
+  return 1e-6 * Math.max(1, Math.abs(value));
+}
+
+function requirePolynomial(cal: Calibration): NonNullable<Calibration['polynomial']> {
+  if (!cal.polynomial) throw new EngineError('invalid_input', 'Calibration model is "polynomial" but it has no polynomial block.');
+  return cal.polynomial;
+}
+
+function requireGrating(cal: Calibration): NonNullable<Calibration['grating']> {
+  if (!cal.grating) throw new EngineError('invalid_input', 'Calibration model is "grating" but it has no grating block.');
+  return cal.grating;
+}
+
+function flatten(covariance: number[][], n: number): Float64Array {
+  const out = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[i * n + j] = covariance[i]?.[j] ?? 0;
+  return out;
+}
+
+/** Wavelength and its 1-σ band at each pixel (both models). Fast: one pass, no allocation per pixel. */
+export function evaluateCalibration(cal: Calibration, pixels: ArrayLike<number>): EvaluatedCalibration {
+  const n = pixels.length;
+  const wavelengthNm = new Float64Array(n);
+  const wavelengthSigmaNm = new Float64Array(n);
+  const scale = cal.scaleSigmaRelative ?? 0;
+  if (cal.model === 'polynomial') {
+    const poly = requirePolynomial(cal);
+    const c = poly.coefficients;
+    const p = c.length;
+    const cov = flatten(poly.covariance, p);
+    const [lo, hi] = poly.domainPx;
+    const t = new Float64Array(p);
+    for (let i = 0; i < n; i++) {
+      const u = (2 * pixels[i] - (lo + hi)) / (hi - lo);
+      t[0] = 1;
+      if (p > 1) t[1] = u;
+      for (let k = 2; k < p; k++) t[k] = 2 * u * t[k - 1] - t[k - 2];
+      let lambda = 0;
+      for (let k = 0; k < p; k++) lambda += c[k] * t[k];
+      let v = 0;
+      for (let k = 0; k < p; k++) {
+        let s = 0;
+        for (let l = 0; l < p; l++) s += cov[k * p + l] * t[l];
+        v += t[k] * s;
+      }
+      wavelengthNm[i] = lambda;
+      wavelengthSigmaNm[i] = Math.sqrt(Math.max(0, v) + (lambda * scale) ** 2);
+    }
+    return { wavelengthNm, wavelengthSigmaNm };
+  }
+  const grating = requireGrating(cal);
+  const names = grating.parameterNames;
+  const k = names.length;
+  const cov = flatten(grating.covariance, k);
+  const g = withParameters(grating.geometry, names, grating.parameters);
+  const jac = new Float64Array(k);
+  const all = new Float64Array(GRATING_PARAMETERS.length);
+  const index = names.map((name) => GRATING_PARAMETERS.indexOf(name as GratingParameter));
+  for (let i = 0; i < n; i++) {
+    const lambda = gratingWavelengthAndJacobian(g, pixels[i], all);
+    for (let j = 0; j < k; j++) jac[j] = all[index[j]];
+    let v = 0;
+    for (let a = 0; a < k; a++) {
+      let s = 0;
+      for (let b = 0; b < k; b++) s += cov[a * k + b] * jac[b];
+      v += jac[a] * s;
+    }
+    wavelengthNm[i] = lambda;
+    wavelengthSigmaNm[i] = Math.sqrt(Math.max(0, v) + (lambda * scale) ** 2);
+  }
+  return { wavelengthNm, wavelengthSigmaNm };
+}
+
+const DEG = Math.PI / 180;
+
+/**
+ * First-order λ(p) of grating.ts's model and its analytic partial derivatives with respect to
+ * every GRATING_PARAMETERS entry (per degree, per mm, per pixel), written into `jacobian` in that
+ * order. Same formula as pixelToWavelengthNm (tested equal); analytic so that evaluating 2048
+ * pixels costs one set of trig calls per pixel. With s = (p − c)·pitch, N = s·cos θ,
+ * D = L + s·sin θ, ω = atan2(N, D), β = β0 + σω:
+ *   ∂ω/∂L = −N/(N² + D²), ∂ω/∂θ = −s(L sin θ + s)/(N² + D²), ∂ω/∂s = L cos θ/(N² + D²).
+ */
+export function gratingWavelengthAndJacobian(g: GratingGeometry, pixel: number, jacobian: Float64Array): number {
+  const d = 1e6 / g.grooveDensityPerMm;
+  const sigma = g.wavelengthIncreasesWithPixel ? -1 : 1;
+  const pitchMm = g.pixelPitchUm * 1e-3;
+  const sMm = (pixel - g.detectorCenterPixel) * pitchMm;
+  const tilt = g.detectorTiltDeg * DEG;
+  const cosT = Math.cos(tilt);
+  const sinT = Math.sin(tilt);
+  const num = sMm * cosT;
+  const den = g.detectorDistanceMm + sMm * sinT;
+  const r2 = num * num + den * den;
+  const beta = g.detectorAngleDeg * DEG + sigma * Math.atan2(num, den);
+  const alpha = g.incidenceAngleDeg * DEG;
+  const lambda = d * (Math.sin(alpha) - Math.sin(beta));
+  const dLdBeta = -d * Math.cos(beta);
+  jacobian[0] = d * Math.cos(alpha) * DEG;
+  jacobian[1] = dLdBeta * sigma * (-num / r2);
+  jacobian[2] = dLdBeta * DEG;
+  jacobian[3] = dLdBeta * sigma * ((-sMm * (g.detectorDistanceMm * sinT + sMm)) / r2) * DEG;
+  jacobian[4] = dLdBeta * sigma * ((g.detectorDistanceMm * cosT) / r2) * -pitchMm;
+  return lambda > 0 ? lambda : Number.NaN;
+}
+
+/** Local first-order dispersion dλ/dp (nm per pixel) at each pixel: analytic for the polynomial. */
+export function calibrationDispersionNmPerPixel(cal: Calibration, pixels: ArrayLike<number>): Float64Array {
+  const n = pixels.length;
+  const out = new Float64Array(n);
+  if (cal.model === 'polynomial') {
+    const poly = requirePolynomial(cal);
+    const [lo, hi] = poly.domainPx;
+    const d = chebyshevDerivative(poly.coefficients);
+    const du = 2 / (hi - lo);
+    for (let i = 0; i < n; i++) out[i] = chebyshevValue(d, (2 * pixels[i] - (lo + hi)) / (hi - lo)) * du;
+    return out;
+  }
+  const grating = requireGrating(cal);
+  const g = withParameters(grating.geometry, grating.parameterNames, grating.parameters);
+  // dλ/dp = −∂λ/∂c: a pixel step is a detector-centre step with the opposite sign.
+  const jac = new Float64Array(GRATING_PARAMETERS.length);
+  for (let i = 0; i < n; i++) {
+    gratingWavelengthAndJacobian(g, pixels[i], jac);
+    out[i] = -jac[4];
+  }
+  return out;
+}
+
+/** Polynomial λ₁(p) at a single pixel. */
+function polynomialAt(poly: NonNullable<Calibration['polynomial']>, pixel: number): number {
+  const [lo, hi] = poly.domainPx;
+  return chebyshevValue(poly.coefficients, (2 * pixel - (lo + hi)) / (hi - lo));
+}
+
+/**
+ * Pixel where wavelength λ in diffraction order m lands (where m·λ lands in first order).
+ * Grating model: exact inverse of the grating equation. Polynomial model: bracketing over the
+ * domain widened by half its span each side, then bisection polished by Newton; when the
+ * polynomial is not monotonic the root inside the domain nearest its centre wins.
+ * Returns NaN when no pixel maps to that wavelength.
+ */
+export function calibrationWavelengthToPixel(cal: Calibration, wavelengthNm: number, diffractionOrder = 1): number {
+  if (!(wavelengthNm > 0) || !(diffractionOrder >= 1)) return Number.NaN;
+  const target = wavelengthNm * diffractionOrder;
+  if (cal.model === 'grating') {
+    const grating = requireGrating(cal);
+    return wavelengthToPixel(withParameters(grating.geometry, grating.parameterNames, grating.parameters), target, 1);
+  }
+  const poly = requirePolynomial(cal);
+  const [lo, hi] = poly.domainPx;
+  const span = hi - lo;
+  const a = lo - span / 2;
+  const b = hi + span / 2;
+  const samples = 128;
+  const centre = (lo + hi) / 2;
+  let best = Number.NaN;
+  let bestScore = Number.POSITIVE_INFINITY;
+  let prevP = a;
+  let prevF = polynomialAt(poly, a) - target;
+  for (let s = 1; s <= samples; s++) {
+    const p = a + ((b - a) * s) / samples;
+    const f = polynomialAt(poly, p) - target;
+    if (prevF === 0 || prevF * f < 0 || (f === 0 && s === samples)) {
+      const root = prevF === 0 ? prevP : f === 0 ? p : refineRoot(poly, target, prevP, p, prevF);
+      const inside = root >= lo && root <= hi;
+      // Prefer roots inside the domain, then the one nearest its centre.
+      const score = (inside ? 0 : span) + Math.abs(root - centre);
+      if (score < bestScore) {
+        bestScore = score;
+        best = root;
+      }
+    }
+    prevP = p;
+    prevF = f;
+  }
+  return best;
+}
+
+function refineRoot(poly: NonNullable<Calibration['polynomial']>, target: number, left: number, right: number, fLeft: number): number {
+  const [lo, hi] = poly.domainPx;
+  const d = chebyshevDerivative(poly.coefficients);
+  const du = 2 / (hi - lo);
+  let a = left;
+  let b = right;
+  let fa = fLeft;
+  let x = (a + b) / 2;
+  for (let iter = 0; iter < 100; iter++) {
+    const f = polynomialAt(poly, x) - target;
+    if (f === 0) return x;
+    if (fa * f < 0) b = x;
+    else {
+      a = x;
+      fa = f;
+    }
+    const slope = chebyshevValue(d, (2 * x - (lo + hi)) / (hi - lo)) * du;
+    let next = slope !== 0 ? x - f / slope : Number.NaN;
+    // Newton when it stays inside the bracket, bisection otherwise.
+    if (!(next > a && next < b)) next = (a + b) / 2;
+    if (Math.abs(next - x) <= 1e-12 * Math.max(1, Math.abs(x))) return next;
+    x = next;
+  }
+  return x;
+}

@@ -1,0 +1,295 @@
+/**
+ * Physical dispersion map: fit the free entries of a GratingGeometry so that the grating equation
+ * (grating.ts) puts each line where it was seen.
+ *
+ * Residuals are in pixels: (observed pixel − wavelengthToPixel(g, λ, m)) / pixelSigma. The
+ * minimiser is our own Levenberg–Marquardt (Marquardt's diagonal scaling; each step solved by
+ * Householder QR on the augmented system [J; √μ·D] rather than the normal equations) with a
+ * central-difference Jacobian. We use it instead of ml-levenberg-marquardt because that library
+ * inverts JᵀJ, offers only hard box bounds and a fixed damping schedule; with ≤ 5 parameters our
+ * loop is short and lets us report the Jacobian at the solution for the covariance.
+ *
+ * Soft bounds: outside [lo, hi] a parameter pays a penalty residual excess / (1e-6·(hi − lo)), a
+ * steep quadratic wall that stays differentiable for LM; penalties never enter the reported χ²,
+ * and the covariance (data Jacobian only) ignores an active bound. The central diffraction angle and the detector centre
+ * pixel move the spectrum the same way: freeing both is refused.
+ */
+import { EngineError } from '../errors.ts';
+import { pixelToWavelengthNm, wavelengthToPixel } from '../grating.ts';
+import type { Calibration, GratingGeometry } from '../types.ts';
+import { type GratingParameter, GRATING_PARAMETERS, parameterStep, withParameters } from './evaluate.ts';
+import { householderQr, qrSolve, unscaledCovariance } from './householder.ts';
+import { conditionOfQr } from './polynomial-fit.ts';
+
+export interface GratingMapPoint {
+  pixel: number;
+  pixelSigma: number;
+  /** True wavelength of the line, nm. */
+  wavelengthNm: number;
+  /** Diffraction order m ≥ 1 the line was seen in. */
+  diffractionOrder: number;
+}
+
+export interface GratingMapOptions {
+  /** Geometry entries to fit; the others stay at the start geometry's values. */
+  free: GratingParameter[];
+  /** Soft bounds per free parameter. @default none */
+  bounds?: Partial<Record<GratingParameter, [number, number]>>;
+  /** Extra starts besides `start` (deterministic offsets). @default 4 */
+  restarts?: number;
+  /** LM iteration limit per start. @default 200 */
+  maxIterations?: number;
+}
+
+export interface GratingMapFit {
+  grating: NonNullable<Calibration['grating']>;
+  /** Observed − predicted pixel. */
+  residualsPx: number[];
+  /** λ_i − λ(p_i) in true-wavelength terms (first-order map / m), nm. */
+  residualsNm: number[];
+  leaveOneOutResidualsPx: number[];
+  leaveOneOutResidualsNm: number[];
+  chiSquare: number;
+  /** χ² / (n − free parameters). */
+  reducedChiSquare: number;
+  residualRmsNm: number;
+  /** Condition number of the equilibrated weighted Jacobian at the solution. */
+  conditionNumber: number;
+  /** False when the free parameters are nearly degenerate (condition number > 1e8). */
+  wellConditioned: boolean;
+  iterations: number;
+  /** How many starts were tried and which won (0 = the given start). */
+  starts: number;
+  bestStart: number;
+}
+
+/** Typical scale of each parameter, for restart offsets (common practice for such spectrometers). */
+const RESTART_SCALE: Record<GratingParameter, (g: GratingGeometry) => number> = {
+  incidenceAngleDeg: () => 0.5,
+  detectorDistanceMm: (g) => 0.03 * g.detectorDistanceMm,
+  detectorAngleDeg: () => 0.5,
+  detectorTiltDeg: () => 3,
+  detectorCenterPixel: () => 30,
+};
+
+const NAN_RESIDUAL = 1e6;
+
+interface Problem {
+  points: readonly GratingMapPoint[];
+  start: GratingGeometry;
+  names: GratingParameter[];
+  bounds: Array<[number, number] | undefined>;
+}
+
+function pixelResiduals(problem: Problem, theta: ArrayLike<number>, skip = -1): Float64Array {
+  const g = withParameters(problem.start, problem.names, theta);
+  const { points } = problem;
+  const out = new Float64Array(points.length);
+  for (let i = 0; i < points.length; i++) {
+    if (i === skip) continue;
+    const pt = points[i];
+    const predicted = wavelengthToPixel(g, pt.wavelengthNm, pt.diffractionOrder);
+    out[i] = Number.isFinite(predicted) ? (pt.pixel - predicted) / pt.pixelSigma : NAN_RESIDUAL;
+  }
+  return out;
+}
+
+function penalties(problem: Problem, theta: ArrayLike<number>): Float64Array {
+  const out = new Float64Array(problem.names.length);
+  problem.bounds.forEach((b, j) => {
+    if (!b) return;
+    const width = Math.max(1e-15, 1e-6 * (b[1] - b[0]));
+    if (theta[j] < b[0]) out[j] = (b[0] - theta[j]) / width;
+    else if (theta[j] > b[1]) out[j] = (theta[j] - b[1]) / width;
+  });
+  return out;
+}
+
+function cost(problem: Problem, theta: ArrayLike<number>, skip: number): number {
+  let s = 0;
+  for (const r of pixelResiduals(problem, theta, skip)) s += r * r;
+  for (const r of penalties(problem, theta)) s += r * r;
+  return s;
+}
+
+/** Column-major Jacobian of [pixel residuals; penalties] by central differences. */
+function jacobian(problem: Problem, theta: Float64Array, skip: number, withPenalties: boolean): { a: Float64Array; rows: number } {
+  const n = problem.points.length;
+  const k = theta.length;
+  const rows = withPenalties ? n + k : n;
+  const a = new Float64Array(rows * k);
+  for (let j = 0; j < k; j++) {
+    const h = parameterStep(theta[j]);
+    const up = Float64Array.from(theta);
+    const down = Float64Array.from(theta);
+    up[j] += h;
+    down[j] -= h;
+    const rUp = pixelResiduals(problem, up, skip);
+    const rDown = pixelResiduals(problem, down, skip);
+    for (let i = 0; i < n; i++) a[j * rows + i] = (rUp[i] - rDown[i]) / (2 * h);
+    if (withPenalties) {
+      const pUp = penalties(problem, up);
+      const pDown = penalties(problem, down);
+      for (let i = 0; i < k; i++) a[j * rows + n + i] = (pUp[i] - pDown[i]) / (2 * h);
+    }
+  }
+  return { a, rows };
+}
+
+/** Levenberg–Marquardt from theta0; returns the best parameters and the iteration count. */
+function levenbergMarquardt(problem: Problem, theta0: Float64Array, skip: number, maxIterations: number): { theta: Float64Array; cost: number; iterations: number } {
+  const k = theta0.length;
+  const n = problem.points.length;
+  let theta = Float64Array.from(theta0);
+  let current = cost(problem, theta, skip);
+  let mu = 1e-3;
+  let iterations = 0;
+  for (; iterations < maxIterations; iterations++) {
+    const { a, rows } = jacobian(problem, theta, skip, true);
+    const r = new Float64Array(rows);
+    r.set(pixelResiduals(problem, theta, skip));
+    r.set(penalties(problem, theta), n);
+    // Marquardt scaling: D = diag of the column norms of J.
+    const d = new Float64Array(k);
+    for (let j = 0; j < k; j++) {
+      let s = 0;
+      for (let i = 0; i < rows; i++) s += a[j * rows + i] ** 2;
+      d[j] = Math.sqrt(s) || 1;
+    }
+    let improved = false;
+    for (let attempt = 0; attempt < 30; attempt++) {
+      // Augmented least squares: [J; √μ D] δ ≈ [−r; 0]; residual r = obs − model, so J here is ∂r/∂θ.
+      const aug = new Float64Array((rows + k) * k);
+      for (let j = 0; j < k; j++) {
+        for (let i = 0; i < rows; i++) aug[j * (rows + k) + i] = a[j * rows + i];
+        aug[j * (rows + k) + rows + j] = Math.sqrt(mu) * d[j];
+      }
+      const rhs = new Float64Array(rows + k);
+      for (let i = 0; i < rows; i++) rhs[i] = -r[i];
+      const delta = qrSolve(householderQr({ rows: rows + k, cols: k, a: aug }), rhs);
+      const trial = Float64Array.from(theta, (v, j) => v + delta[j]);
+      const trialCost = cost(problem, trial, skip);
+      if (trialCost < current) {
+        const gain = current - trialCost;
+        theta = trial;
+        const previous = current;
+        current = trialCost;
+        mu = Math.max(mu / 3, 1e-12);
+        improved = true;
+        const small = delta.every((v, j) => Math.abs(v) <= 1e-12 * Math.max(1, Math.abs(theta[j])));
+        if (gain <= 1e-14 * Math.max(previous, 1e-300) || small) return { theta, cost: current, iterations: iterations + 1 };
+        break;
+      }
+      mu *= 4;
+      if (mu > 1e16) break;
+    }
+    if (!improved) break;
+  }
+  return { theta, cost: current, iterations };
+}
+
+function resolve(points: readonly GratingMapPoint[], start: GratingGeometry, options: GratingMapOptions): Problem {
+  const names = [...new Set(options.free)];
+  if (names.length === 0) throw new EngineError('invalid_input', 'Name at least one free geometry parameter.');
+  for (const name of names) {
+    if (!GRATING_PARAMETERS.includes(name)) throw new EngineError('invalid_input', `Unknown grating parameter "${name}"; choose from ${GRATING_PARAMETERS.join(', ')}.`);
+    if (!Number.isFinite(start[name])) throw new EngineError('invalid_input', `The start geometry's ${name} is ${start[name]}; give a finite starting value.`);
+  }
+  if (names.includes('detectorAngleDeg') && names.includes('detectorCenterPixel')) {
+    throw new EngineError('invalid_input', 'detectorAngleDeg and detectorCenterPixel move the spectrum the same way; free one of them, not both.');
+  }
+  if (points.length < names.length + 1) throw new EngineError('invalid_input', `Fitting ${names.length} geometry parameters needs at least ${names.length + 1} points, got ${points.length}.`);
+  points.forEach((pt, i) => {
+    if (!Number.isFinite(pt.pixel) || !(pt.pixelSigma > 0) || !(pt.wavelengthNm > 0) || !(Number.isInteger(pt.diffractionOrder) && pt.diffractionOrder >= 1)) {
+      throw new EngineError('invalid_input', `Point ${i} needs a finite pixel, pixelSigma > 0, a positive wavelength and a whole diffraction order ≥ 1.`);
+    }
+  });
+  const bounds = names.map((name) => {
+    const b = options.bounds?.[name];
+    if (b && !(b[0] < b[1])) throw new EngineError('invalid_input', `Bounds for ${name} must be [low, high] with low < high.`);
+    return b;
+  });
+  return { points, start, names, bounds };
+}
+
+/**
+ * Fit the free geometry parameters to the points. The covariance is (JᵀJ)⁻¹ of the weighted
+ * pixel residuals at the solution, multiplied by the reduced χ² when that exceeds 1.
+ */
+export function fitGratingMap(points: readonly GratingMapPoint[], start: GratingGeometry, options: GratingMapOptions): GratingMapFit {
+  const problem = resolve(points, start, options);
+  const { names } = problem;
+  const k = names.length;
+  const n = points.length;
+  const maxIterations = options.maxIterations ?? 200;
+  const restarts = options.restarts ?? 4;
+  const theta0 = Float64Array.from(names, (name) => start[name]);
+  const starts: Float64Array[] = [theta0];
+  for (let s = 0; s < restarts; s++) {
+    // Offsets alternate sign per parameter and grow with s: +1, −1, +2, −2 scales…
+    const magnitude = Math.floor(s / 2) + 1;
+    const sign = s % 2 === 0 ? 1 : -1;
+    starts.push(Float64Array.from(names, (name, j) => start[name] + sign * (j % 2 === 0 ? 1 : -1) * magnitude * RESTART_SCALE[name](start)));
+  }
+  let best: { theta: Float64Array; cost: number; iterations: number } = { theta: theta0, cost: Number.POSITIVE_INFINITY, iterations: 0 };
+  let bestStart = 0;
+  let totalIterations = 0;
+  starts.forEach((t, s) => {
+    const result = levenbergMarquardt(problem, t, -1, maxIterations);
+    totalIterations += result.iterations;
+    if (result.cost < best.cost) {
+      best = result;
+      bestStart = s;
+    }
+  });
+  if (!Number.isFinite(best.cost)) throw new EngineError('fit_failed', 'The grating fit found no geometry that puts the lines on the detector.');
+  const theta = best.theta;
+  const geometry = withParameters(start, names, theta);
+
+  const rw = pixelResiduals(problem, theta);
+  if (rw.some((v) => Math.abs(v) >= NAN_RESIDUAL)) throw new EngineError('fit_failed', 'At the best geometry some lines do not reach the detector plane.');
+  let chiSquare = 0;
+  for (const r of rw) chiSquare += r * r;
+  const dof = n - k;
+  const reducedChiSquare = chiSquare / dof;
+  const { a } = jacobian(problem, theta, -1, false);
+  const qr = householderQr({ rows: n, cols: k, a });
+  const conditionNumber = conditionOfQr(qr);
+  const inflate = Math.max(1, reducedChiSquare);
+  const covariance = unscaledCovariance(qr).map((row) => row.map((v) => v * inflate));
+
+  const residualsPx: number[] = [];
+  const residualsNm: number[] = [];
+  let sumSq = 0;
+  points.forEach((pt, i) => {
+    residualsPx.push(rw[i] * pt.pixelSigma);
+    const r = pt.wavelengthNm - pixelToWavelengthNm(geometry, pt.pixel, pt.diffractionOrder);
+    residualsNm.push(r);
+    sumSq += r * r;
+  });
+  const leaveOneOutResidualsPx: number[] = [];
+  const leaveOneOutResidualsNm: number[] = [];
+  points.forEach((pt, i) => {
+    // Warm start from the full solution: leaving one point out moves it little.
+    const loo = levenbergMarquardt(problem, theta, i, maxIterations);
+    const g = withParameters(start, names, loo.theta);
+    const predicted = wavelengthToPixel(g, pt.wavelengthNm, pt.diffractionOrder);
+    leaveOneOutResidualsPx.push(pt.pixel - predicted);
+    leaveOneOutResidualsNm.push(pt.wavelengthNm - pixelToWavelengthNm(g, pt.pixel, pt.diffractionOrder));
+  });
+  return {
+    grating: { geometry, parameterNames: [...names], parameters: Array.from(theta), covariance },
+    residualsPx,
+    residualsNm,
+    leaveOneOutResidualsPx,
+    leaveOneOutResidualsNm,
+    chiSquare,
+    reducedChiSquare,
+    residualRmsNm: Math.sqrt(sumSq / n),
+    conditionNumber,
+    wellConditioned: conditionNumber <= 1e8,
+    iterations: totalIterations,
+    starts: starts.length,
+    bestStart,
+  };
+}

@@ -1,0 +1,56 @@
+/**
+ * Filter transmission for the simulator, from the project's reference module
+ * (shared/engine/references.ts over calibration-data/filters.json: Henke-based free-standing
+ * foils, 15-300 eV). Outside the table's range the nearest end value is held, so a continuum that
+ * runs past 300 eV or below 15 eV stays finite (indicative only there, as the table itself says
+ * below ~30 eV).
+ */
+import { filterTransmission } from '../references.ts';
+import type { SimFilter } from './types.ts';
+
+/** Transmission of one foil at one photon energy (the signature of references.ts' filterTransmission). */
+export type FilterTransmissionFn = (material: string, energyEv: number, thicknessNm?: number) => number;
+
+/** Energy range of calibration-data/filters.json, eV. */
+const TABLE_RANGE_EV: [number, number] = [15, 300];
+
+/** references.ts' filterTransmission with the table's end values held outside 15-300 eV. */
+export function referenceFilterTransmission(material: string, energyEv: number, thicknessNm?: number): number {
+  const clamped = Math.min(TABLE_RANGE_EV[1], Math.max(TABLE_RANGE_EV[0], energyEv));
+  return filterTransmission(material, clamped, thicknessNm);
+}
+
+/** Product of the transmissions of a stack of foils at `energyEv`. */
+export function filterStackTransmission(
+  filters: readonly SimFilter[],
+  energyEv: number,
+  transmission: FilterTransmissionFn = referenceFilterTransmission,
+): number {
+  let product = 1;
+  for (const filter of filters) product *= transmission(filter.material, energyEv, filter.thicknessNm);
+  return product;
+}
+
+/**
+ * The energy (eV) in [loEv, hiEv] where the stack's transmission drops most steeply with rising
+ * energy (largest fall of ln T per eV, on a 0.5 eV grid): where an edge cuts a comb.
+ * NaN when nothing drops by more than a factor 2 over 1 eV.
+ */
+export function steepestEdgeEv(
+  filters: readonly SimFilter[],
+  loEv: number,
+  hiEv: number,
+  transmission: FilterTransmissionFn = referenceFilterTransmission,
+): number {
+  let bestEv = Number.NaN;
+  let bestDrop = Math.log(2);
+  for (let e = loEv; e + 1 <= hiEv; e += 0.5) {
+    const drop = Math.log(Math.max(filterStackTransmission(filters, e, transmission), 1e-300)) -
+      Math.log(Math.max(filterStackTransmission(filters, e + 1, transmission), 1e-300));
+    if (drop > bestDrop) {
+      bestDrop = drop;
+      bestEv = e + 0.5;
+    }
+  }
+  return bestEv;
+}

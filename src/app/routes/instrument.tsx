@@ -1,0 +1,88 @@
+import { Link, useNavigate, useParams } from 'react-router-dom';
+import { canManageInstrument, roleOn, useSession } from '@/features/auth/api/get-session';
+import { useInstrument } from '@/features/instruments/api/get-instrument';
+import { useDeleteInstrument } from '@/features/instruments/api/delete-instrument';
+import { ProfileSummary } from '@/features/instruments/components/profile-summary';
+import { EmptyState, Loading, PageHeader, Panel } from '@/components/page';
+import { ErrorAlert } from '@/components/alert';
+import { Button } from '@/components/button';
+import { RoleBadge } from '@/components/role-badge';
+import { SafetyCaution } from '@/components/safety-caution';
+
+const linkButton =
+  'inline-flex items-center rounded-md px-3.5 py-2 text-sm font-medium shadow-xs bg-white text-slate-800 ring-1 ring-slate-300 hover:bg-slate-50';
+
+/** /instruments/:instrumentId: profile, members, calibrations (to come) and the safety caution. */
+export function InstrumentRoute() {
+  const { instrumentId = '' } = useParams();
+  const session = useSession();
+  const instrument = useInstrument(instrumentId);
+  const remove = useDeleteInstrument();
+  const navigate = useNavigate();
+
+  if (instrument.isPending) return <Loading what="Loading instrument" />;
+  if (instrument.isError) return <ErrorAlert error={instrument.error} title="Could not load the instrument" />;
+
+  const canManage = canManageInstrument(session.data, instrumentId);
+  const role = roleOn(session.data, instrumentId) ?? (session.data?.user?.isAdmin ? 'site admin' : null);
+  const { data } = instrument;
+
+  return (
+    <>
+      <PageHeader
+        title={data.name}
+        subtitle={
+          <span className="flex flex-wrap items-center gap-2">
+            Your role:{' '}
+            <span data-testid="instrument-role">
+              <RoleBadge role={role} />
+            </span>
+          </span>
+        }
+        actions={
+          <>
+            <Link to={`/instruments/${instrumentId}/members`} className={linkButton}>
+              Members
+            </Link>
+            {canManage ? (
+              <Link to={`/instruments/${instrumentId}/edit`} className={linkButton}>
+                Edit profile
+              </Link>
+            ) : null}
+          </>
+        }
+      />
+      <div className="flex flex-col gap-6">
+        <SafetyCaution />
+        {data.description ? <p className="max-w-3xl text-sm whitespace-pre-line text-slate-700">{data.description}</p> : null}
+        <Panel title="Profile (nominal geometry)">
+          <ProfileSummary profile={data.profile} />
+        </Panel>
+        <Panel title="Calibrations">
+          <EmptyState>No calibration versions yet.</EmptyState>
+        </Panel>
+        {canManage ? (
+          <Panel title="Danger zone">
+            <div className="flex flex-wrap items-center justify-between gap-4">
+              <p className="text-sm text-slate-600">Deleting an instrument removes it for every member.</p>
+              <Button
+                variant="danger"
+                pending={remove.isPending}
+                onClick={() => {
+                  if (window.confirm(`Delete ${data.name}? This cannot be undone.`)) {
+                    remove.mutate(instrumentId, { onSuccess: () => navigate('/instruments') });
+                  }
+                }}
+              >
+                Delete instrument
+              </Button>
+            </div>
+            <div className="mt-3">
+              <ErrorAlert error={remove.error} title="The instrument was not deleted" />
+            </div>
+          </Panel>
+        ) : null}
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,166 @@
+/**
+ * `npm run bench`: median time and memory per engine stage on a 2048 x 2048 and a 2048 x 512
+ * 16-bit frame, in one process after warm-up, beside the numpy/scipy reference pipeline in
+ * ../shared/bench/ run on the same files when Python with numpy and tifffile is available.
+ *
+ * The frames are the reference pipeline's own synthetic frame (odd harmonics of 800 nm on a
+ * 1200 l/mm grazing-incidence grating) when Python can write it; otherwise our simulator renders
+ * the same geometry and our encoder writes it. Both pipelines then read the same file.
+ */
+import { execFileSync } from 'node:child_process';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { decodeFrame } from '../../shared/engine/frames/index.ts';
+import { reduceFrame } from '../../shared/engine/reduce.ts';
+import { findPeaks } from '../../shared/engine/peaks.ts';
+import { calibrateFrame } from '../../shared/engine/calibrate.ts';
+import { applyCalibration } from '../../shared/engine/apply.ts';
+import type { InstrumentProfile } from '../../shared/engine/types.ts';
+import { benchFrameFallback } from './bench-frame.ts';
+
+const REPEAT = Number(process.env.BENCH_REPEAT ?? 15);
+const OUT_DIR = path.resolve('.data/bench');
+const REFERENCE = path.resolve('../shared/bench/reference_pipeline.py');
+const PYTHON = existsSync('/usr/bin/python3') ? '/usr/bin/python3' : 'python3';
+
+/** The reference frame's geometry (reference_pipeline.py make_frame), as our profile. */
+function referenceProfile(width: number): InstrumentProfile {
+  return {
+    name: 'reference pipeline frame',
+    spectralAxis: 'x',
+    grooveDensityPerMm: 1200,
+    incidenceAngleDeg: 87,
+    detectorDistanceMm: 235,
+    pixelPitchUm: 13.5,
+    wavelengthIncreasesWithPixel: false,
+    detectorCenterPixel: width / 2,
+    detectorAngleDeg: 77,
+  };
+}
+
+function pythonHasNumpy(): boolean {
+  try {
+    execFileSync(PYTHON, ['-c', 'import numpy, tifffile'], { stdio: 'ignore' });
+    return existsSync(REFERENCE);
+  } catch {
+    return false;
+  }
+}
+
+function median(values: number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const mid = sorted.length >> 1;
+  return sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+}
+
+function memoryMiB(): number {
+  const m = process.memoryUsage();
+  return (m.heapUsed + m.arrayBuffers) / 2 ** 20;
+}
+
+interface StageFigures {
+  medianMs: number;
+  retainedMiB: number;
+}
+
+/** Times `run` REPEAT times after one warm-up; memory is what one run's result retains. */
+async function timeStage<T>(run: () => T | Promise<T>): Promise<{ figures: StageFigures; result: T }> {
+  const gc = (globalThis as { gc?: () => void }).gc;
+  let result = await run();
+  const times: number[] = [];
+  for (let i = 0; i < REPEAT; i += 1) {
+    const start = performance.now();
+    result = await run();
+    times.push(performance.now() - start);
+  }
+  gc?.();
+  const before = memoryMiB();
+  const kept = await run();
+  const retainedMiB = Math.max(0, memoryMiB() - before);
+  result = kept;
+  return { figures: { medianMs: median(times), retainedMiB }, result };
+}
+
+async function benchOurs(file: string, width: number) {
+  const bytes = new Uint8Array(readFileSync(file));
+  const profile = referenceProfile(width);
+  const decode = await timeStage(() => decodeFrame(bytes));
+  const frame = decode.result;
+  const reduceOptions = { spectralAxis: 'x' as const };
+  const reduce = await timeStage(() => reduceFrame(frame, reduceOptions));
+  const peaks = await timeStage(() => findPeaks(reduce.result));
+  const calibrateOptions = { profile, driverNm: 800, driverTolerancePct: 1, parity: 'odd' as const, filters: [] as string[], pins: [] };
+  const calibrate = await timeStage(() => calibrateFrame(frame, calibrateOptions));
+  const calibration = calibrate.result.calibration;
+  if (!calibration) throw new Error(`bench frame did not calibrate: ${calibrate.result.status}: ${calibrate.result.message}`);
+  const apply = await timeStage(() => applyCalibration(reduce.result, peaks.result, calibration));
+  const assignFitMs = Math.max(0, calibrate.figures.medianMs - reduce.figures.medianMs - peaks.figures.medianMs);
+  // apply on a new frame = reduce + peaks + the map; that is what a student's upload costs.
+  const applyFrameMs = reduce.figures.medianMs + peaks.figures.medianMs + apply.figures.medianMs;
+  return {
+    status: calibrate.result.status,
+    peaksFound: peaks.result.length,
+    stages: {
+      decode: decode.figures,
+      reduce: reduce.figures,
+      peaks: peaks.figures,
+      'assign+fit': { medianMs: assignFitMs, retainedMiB: calibrate.figures.retainedMiB },
+      apply: apply.figures,
+    },
+    calibrateFrameMs: calibrate.figures.medianMs,
+    applyFrameMs,
+  };
+}
+
+function benchReference(file: string): Record<string, number> | null {
+  try {
+    const out = execFileSync(PYTHON, [REFERENCE, file, '--repeat', String(REPEAT)], { encoding: 'utf8' });
+    const parsed = JSON.parse(out) as { medianMs: Record<string, number>; peakTracedMiB: number };
+    return { ...parsed.medianMs, peakTracedMiB: parsed.peakTracedMiB };
+  } catch (error) {
+    console.warn(`reference pipeline failed: ${(error as Error).message}`);
+    return null;
+  }
+}
+
+function makeFrame(width: number, height: number, withPython: boolean): string {
+  mkdirSync(OUT_DIR, { recursive: true });
+  const file = path.join(OUT_DIR, `bench-${width}x${height}.tif`);
+  if (withPython) {
+    execFileSync(PYTHON, [REFERENCE, '--make-frame', file, '--width', String(width), '--height', String(height)]);
+  } else {
+    writeFileSync(file, benchFrameFallback(width, height));
+  }
+  return file;
+}
+
+const pad = (s: string, n: number) => s.padStart(n);
+const fmt = (v: number | undefined) => (v === undefined || !Number.isFinite(v) ? '-' : v.toFixed(2));
+
+async function main() {
+  const withPython = pythonHasNumpy();
+  console.log(`orderly bench: ${REPEAT} runs per stage after a warm-up, medians; node ${process.version}`);
+  console.log(withPython ? 'reference pipeline: ../shared/bench/reference_pipeline.py (numpy/scipy/tifffile), same files' : 'reference pipeline: not available (needs /usr/bin/python3 with numpy, scipy, tifffile); our figures only');
+  const referenceStage: Record<string, string> = { decode: 'decode', reduce: 'reduce', peaks: 'peaks', 'assign+fit': 'fit', apply: 'apply' };
+  for (const [width, height] of [
+    [2048, 2048],
+    [2048, 512],
+  ]) {
+    const file = makeFrame(width, height, withPython);
+    const ours = await benchOurs(file, width);
+    const reference = withPython ? benchReference(file) : null;
+    console.log(`\nframe ${width} x ${height} uint16 (${path.basename(file)}): status ${ours.status}, ${ours.peaksFound} peaks`);
+    console.log(`${'stage'.padEnd(11)}${pad('orderly ms', 12)}${pad('retained MiB', 14)}${pad('reference ms', 14)}${pad('ratio', 8)}`);
+    for (const [stage, figures] of Object.entries(ours.stages)) {
+      const ref = reference?.[referenceStage[stage]];
+      const ratio = ref ? figures.medianMs / ref : Number.NaN;
+      console.log(`${stage.padEnd(11)}${pad(fmt(figures.medianMs), 12)}${pad(fmt(figures.retainedMiB), 14)}${pad(fmt(ref), 14)}${pad(fmt(ratio), 8)}`);
+    }
+    console.log(`calibrate (reduce+peaks+assign+fit) ${fmt(ours.calibrateFrameMs)} ms (target < 200 ms on 2048 x 2048); apply to a frame (reduce+peaks+map) ${fmt(ours.applyFrameMs)} ms (target < 80 ms)`);
+    if (reference) console.log(`reference peak traced memory ${fmt(reference.peakTracedMiB)} MiB`);
+  }
+  console.log(`\nprocess max RSS ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB`);
+  console.log('note: our reduce also rejects hot pixels/cosmic rays and corrects line tilt; assign+fit does a full order assignment, the reference only a fixed labelling.');
+}
+
+await main();

@@ -1,0 +1,82 @@
+// Filters in the simulator. Edge energies: calibration-data/edges.json (xraylib 4.0.0
+// EdgeEnergy: Al L3 = 72.7 eV, L2 = 73.2 eV) through references.ts absorptionEdges. Transmission:
+// calibration-data/filters.json (Henke, Gullikson & Davis 1993 via periodictable 1.6.0), whose
+// 200 nm Al foil falls from 0.735 at 72 eV to 0.029 at 73 eV (shared/reference/README.md).
+import { describe, expect, it } from 'vitest';
+import { HC_EV_NM } from '../../../shared/engine/constants.ts';
+import { absorptionEdges } from '../../../shared/engine/references.ts';
+import { filterStackTransmission, simulateFrame, steepestEdgeEv } from '../../../shared/engine/simulate/index.ts';
+import { baseScenario, lineout, windowSum } from './helpers.ts';
+
+const alL3Ev = absorptionEdges('Al').find((e) => e.shell === 'L3')!.energyEv;
+const alL2Ev = absorptionEdges('Al').find((e) => e.shell === 'L2')!.energyEv;
+
+describe('filters cut the comb at the edge energy', () => {
+  it('the edge file gives Al L3 72.7 eV (xraylib 4.0.0)', () => {
+    expect(alL3Ev).toBeCloseTo(72.7, 1);
+  });
+
+  it('200 nm Al: rendered lines above the L edge are attenuated > 10x, lines below pass', () => {
+    // 800 nm × (1 − 0.5 %) harmonics 1.558 eV apart: q = 45 (70.1 eV) below, q ≥ 47 (73.2 eV) above.
+    const open = baseScenario({}, 46);
+    const filtered = baseScenario({ filters: [{ material: 'Al', thicknessNm: 200 }] }, 46);
+    const a = simulateFrame(open, 7);
+    const b = simulateFrame(filtered, 7);
+    const sumA = lineout(a.frame, 'x', 0, a.frame.height, 100);
+    const sumB = lineout(b.frame, 'x', 0, b.frame.height, 100);
+    let above = 0;
+    let below = 0;
+    for (const line of a.truth.lines) {
+      if (line.pixel < 12 || line.pixel > 1011 || a.truth.lines.some((o) => o !== line && Math.abs(o.pixel - line.pixel) < 24)) continue;
+      const ratio = windowSum(sumB, line.pixel - 10, line.pixel + 10) / windowSum(sumA, line.pixel - 10, line.pixel + 10);
+      if (line.energyEv > alL2Ev + 0.5) {
+        expect(ratio).toBeLessThan(0.1);
+        above += 1;
+      } else if (line.energyEv > 30 && line.energyEv < alL3Ev - 1) {
+        expect(ratio).toBeGreaterThan(0.6);
+        below += 1;
+      }
+    }
+    expect(above).toBeGreaterThanOrEqual(2);
+    expect(below).toBeGreaterThanOrEqual(2);
+  });
+
+  it('Beer–Lambert: two 100 nm foils transmit as one 200 nm foil', () => {
+    for (const e of [40, 60, 80, 150]) {
+      const two = filterStackTransmission([{ material: 'Zr', thicknessNm: 100 }, { material: 'Zr', thicknessNm: 100 }], e);
+      const one = filterStackTransmission([{ material: 'Zr', thicknessNm: 200 }], e);
+      expect(two / one).toBeCloseTo(1, 9);
+    }
+  });
+
+  it('the steepest drop of the Al table lies at the tabulated edge', () => {
+    const edge = steepestEdgeEv([{ material: 'Al', thicknessNm: 200 }], 60, 90);
+    expect(Math.abs(edge - alL3Ev)).toBeLessThan(1);
+  });
+
+  it('a continuum behind the filter shows the edge where the comb is cut', () => {
+    const scenario = baseScenario({
+      envelope: { plateauPhotons: 0, cutoffHarmonic: 80 },
+      continuum: { photonsPerPixel: 400, spatialFwhmPx: 60 },
+      filters: [{ material: 'Al', thicknessNm: 200 }],
+    }, 46);
+    const { frame, truth } = simulateFrame(scenario, 3);
+    const sum = lineout(frame, 'x', truth.signal.start, truth.signal.end, 100);
+    // Smooth over 5 px, then find the steepest fall towards higher energy.
+    let best = 0;
+    let bestPixel = -1;
+    for (let p = 5; p < sum.length - 5; p += 1) {
+      const eHere = HC_EV_NM / truth.wavelengthNmAtPixel[p];
+      const left = windowSum(sum, p - 5, p - 1);
+      const right = windowSum(sum, p + 1, p + 5);
+      // Wavelength increases with pixel here, so energy falls with pixel: the edge is a rise to the right.
+      const step = right - left;
+      if (eHere > 40 && eHere < 110 && step > best) {
+        best = step;
+        bestPixel = p;
+      }
+    }
+    const edgeEv = HC_EV_NM / truth.wavelengthNmAtPixel[bestPixel];
+    expect(Math.abs(edgeEv - alL3Ev)).toBeLessThan(1);
+  });
+});
