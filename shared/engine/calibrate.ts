@@ -1,0 +1,248 @@
+/**
+ * The calibrate pipeline: frame → lineout → peaks → order assignment → dispersion map, returned
+ * as the `orderly calibrate --json` object. Never throws on bad data: an EngineError becomes a
+ * `failed` result with its message.
+ */
+import { assignOrders, type AssignResult, type FilterSpec, type Hypothesis } from './assign/index.ts';
+import { HC_EV_NM } from './constants.ts';
+import { evaluateCalibration, fitGratingMap, fitPolynomialMap, type GratingParameter } from './dispersion/index.ts';
+import { EngineError } from './errors.ts';
+import { findPeaks } from './peaks.ts';
+import { reduceFrame } from './reduce.ts';
+import type { Calibration, CalibrationPoint, Frame, InstrumentProfile, LineShape, Lineout, Parity, Peak, SpatialBand } from './types.ts';
+
+export interface CalibrateOptions {
+  /** The instrument's nominal profile. */
+  profile: InstrumentProfile;
+  /** Nominal driver wavelength, nm. */
+  driverNm: number;
+  /** Driver tolerance, percent. @default 1 */
+  driverTolerancePct?: number;
+  /** @default 'odd' */
+  parity?: Parity;
+  /** Filters in the beam. @default [] */
+  filters?: FilterSpec[];
+  /** User-fixed orders. @default [] */
+  pins?: { pixel: number; harmonic: number }[];
+  dark?: Frame;
+  signal?: SpatialBand;
+  background?: SpatialBand[];
+  lineShape?: LineShape;
+  /** Dispersion model: the grating equation, or a Chebyshev polynomial of a given degree. @default 'auto' (grating) */
+  model?: 'auto' | 'grating' | { polynomialDegree: number | 'auto' };
+}
+
+export interface CalibratedPeak {
+  pixel: number;
+  pixelSigma: number;
+  harmonic: number | null;
+  diffractionOrder: number;
+  wavelengthNm: number | null;
+  energyEv: number | null;
+  fwhmPx: number;
+  area: number;
+  snr: number;
+  spatialWidthPx: number;
+}
+
+export interface HypothesisSummary {
+  rank: number;
+  firstHarmonic: number;
+  lastHarmonic: number;
+  harmonics: (number | null)[];
+  matchedPeaks: number;
+  secondOrderPeaks: number;
+  unexplainedPeaks: number;
+  rmsResidualPx: number;
+  score: number;
+  deltaScore: number;
+  driverNm: number;
+}
+
+export interface CalibrateResult {
+  status: 'unique' | 'ambiguous' | 'failed';
+  message: string;
+  peaks: CalibratedPeak[];
+  hypotheses: HypothesisSummary[];
+  /** The map of the best hypothesis; given for `ambiguous` too (marked in its notes), null for `failed`. */
+  calibration: Calibration | null;
+  notes: string[];
+}
+
+function failedResult(message: string, peaks: CalibratedPeak[] = [], notes: string[] = []): CalibrateResult {
+  return { status: 'failed', message, peaks, hypotheses: [], calibration: null, notes };
+}
+
+function unlabelled(peaks: Peak[]): CalibratedPeak[] {
+  return peaks.map((p) => ({
+    pixel: p.pixel,
+    pixelSigma: p.pixelSigma,
+    harmonic: null,
+    diffractionOrder: 1,
+    wavelengthNm: null,
+    energyEv: null,
+    fwhmPx: p.fwhmPx,
+    area: p.area,
+    snr: p.snr,
+    spatialWidthPx: p.spatialWidthPx,
+  }));
+}
+
+function summarise(h: Hypothesis, rank: number): HypothesisSummary {
+  return {
+    rank,
+    firstHarmonic: h.firstHarmonic,
+    lastHarmonic: h.lastHarmonic,
+    harmonics: h.harmonics,
+    matchedPeaks: h.matchedPeaks,
+    secondOrderPeaks: h.secondOrderPeaks,
+    unexplainedPeaks: h.unexplainedPeaks,
+    rmsResidualPx: h.rmsResidualPx,
+    score: h.score,
+    deltaScore: h.deltaScore,
+    driverNm: h.driverNm,
+  };
+}
+
+/** Geometry entries to free in the final fit: as many as the points support, the best-determined first. */
+function freeParameters(pointCount: number): GratingParameter[] {
+  const order: GratingParameter[] = ['detectorAngleDeg', 'detectorDistanceMm', 'detectorTiltDeg', 'incidenceAngleDeg'];
+  return order.slice(0, Math.max(1, Math.min(order.length, pointCount - 2)));
+}
+
+function fitMap(
+  points: CalibrationPoint[],
+  hypothesis: Hypothesis,
+  pixelCount: number,
+  model: CalibrateOptions['model'],
+): { calibration: Pick<Calibration, 'model' | 'polynomial' | 'grating' | 'residualRmsNm' | 'reducedChiSquare'>; residualsNm: number[]; looNm: number[]; notes: string[] } {
+  const notes: string[] = [];
+  if (model && typeof model === 'object') {
+    const fit = fitPolynomialMap(points, { pixelCount, degree: model.polynomialDegree });
+    return {
+      calibration: { model: 'polynomial', polynomial: fit.polynomial, residualRmsNm: fit.residualRmsNm, reducedChiSquare: fit.reducedChiSquare },
+      residualsNm: fit.residualsNm,
+      looNm: fit.leaveOneOutResidualsNm,
+      notes,
+    };
+  }
+  const free = freeParameters(points.length);
+  const g = hypothesis.geometry;
+  const fit = fitGratingMap(points, g, {
+    free,
+    bounds: {
+      detectorAngleDeg: [g.detectorAngleDeg - 2, g.detectorAngleDeg + 2],
+      detectorDistanceMm: [g.detectorDistanceMm * 0.9, g.detectorDistanceMm * 1.1],
+      detectorTiltDeg: [g.detectorTiltDeg - 10, g.detectorTiltDeg + 10],
+      incidenceAngleDeg: [g.incidenceAngleDeg - 1, g.incidenceAngleDeg + 1],
+    },
+  });
+  if (!fit.wellConditioned) notes.push(`The grating fit's free parameters (${free.join(', ')}) are strongly correlated; the map is sound, the individual parameters are not.`);
+  return {
+    calibration: { model: 'grating', grating: fit.grating, residualRmsNm: fit.residualRmsNm, reducedChiSquare: fit.reducedChiSquare },
+    residualsNm: fit.residualsNm,
+    looNm: fit.leaveOneOutResidualsNm,
+    notes,
+  };
+}
+
+function buildCalibration(
+  lineout: Lineout,
+  peaks: Peak[],
+  assignment: AssignResult,
+  hypothesis: Hypothesis,
+  options: CalibrateOptions,
+  spectralAxis: 'x' | 'y',
+): Calibration {
+  const pixelCount = lineout.counts.length;
+  const points: CalibrationPoint[] = [];
+  hypothesis.labels.forEach((label, i) => {
+    if (label.harmonic === null || label.diffractionOrder === null) return;
+    points.push({
+      pixel: peaks[i].pixel,
+      pixelSigma: peaks[i].pixelSigma,
+      harmonic: label.harmonic,
+      diffractionOrder: label.diffractionOrder,
+      wavelengthNm: assignment.driverNm / label.harmonic,
+      residualNm: 0,
+      leaveOneOutResidualNm: Number.NaN,
+    });
+  });
+  if (points.length < 2) throw new EngineError('fit_failed', 'fewer than two labelled peaks: no map can be fitted');
+  const fitted = fitMap(points, hypothesis, pixelCount, options.model);
+  points.forEach((p, i) => {
+    p.residualNm = fitted.residualsNm[i];
+    p.leaveOneOutResidualNm = fitted.looNm[i];
+  });
+  return {
+    format: 'orderly-calibration/1',
+    ...fitted.calibration,
+    spectralAxis,
+    pixelCount,
+    driverNm: assignment.driverNm,
+    driverSigmaNm: assignment.driverSigmaNm,
+    parity: options.parity ?? 'odd',
+    absoluteScale: assignment.anchored ? 'anchored' : 'driver-tolerance',
+    scaleSigmaRelative: assignment.scaleSigmaRelative,
+    points,
+    filters: (options.filters ?? []).map((f) => (typeof f === 'string' ? f : `${f.material}${f.thicknessNm ? `:${f.thicknessNm}` : ''}`)),
+    signal: lineout.signal,
+    background: lineout.background,
+    lineShape: lineout.lineShape,
+    notes: [...assignment.notes, ...fitted.notes],
+  };
+}
+
+/** Runs the whole calibration on one frame. */
+export function calibrateFrame(frame: Frame, options: CalibrateOptions): CalibrateResult {
+  let peaks: Peak[] = [];
+  try {
+    const spectralAxis = options.profile.spectralAxis;
+    const lineout = reduceFrame(frame, {
+      spectralAxis,
+      dark: options.dark,
+      signal: options.signal,
+      background: options.background,
+      lineShape: options.lineShape,
+    });
+    peaks = findPeaks(lineout);
+    if (peaks.length === 0) return failedResult('no peaks above the noise in the signal band: check the signal region, the exposure and the filters');
+    const pixelCount = lineout.counts.length;
+    const assignment = assignOrders(peaks, {
+      profile: options.profile,
+      pixelCount,
+      driverNm: options.driverNm,
+      driverTolerancePct: options.driverTolerancePct,
+      parity: options.parity ?? 'odd',
+      filters: options.filters,
+      pins: options.pins,
+    });
+    const hypotheses = assignment.hypotheses.map((h, i) => summarise(h, i + 1));
+    if (assignment.status === 'failed' || !assignment.best) {
+      return { ...failedResult(assignment.message, unlabelled(peaks), assignment.notes), hypotheses };
+    }
+    const best = assignment.best;
+    const calibration = buildCalibration(lineout, peaks, assignment, best, options, spectralAxis);
+    if (assignment.status === 'ambiguous') {
+      calibration.notes.unshift('AMBIGUOUS: this map belongs to the best of several hypotheses the data could not tell apart; do not use it before an order is pinned or an anchor decides.');
+    }
+    const { wavelengthNm } = evaluateCalibration(calibration, peaks.map((p) => p.pixel));
+    const labelled: CalibratedPeak[] = unlabelled(peaks).map((p, i) => {
+      const label = best.labels[i];
+      const m = label.diffractionOrder ?? 1;
+      const lambda = wavelengthNm[i] / m;
+      const known = label.harmonic !== null && assignment.status === 'unique';
+      return {
+        ...p,
+        harmonic: known ? label.harmonic : null,
+        diffractionOrder: m,
+        wavelengthNm: known && Number.isFinite(lambda) ? lambda : null,
+        energyEv: known && Number.isFinite(lambda) ? HC_EV_NM / lambda : null,
+      };
+    });
+    return { status: assignment.status, message: assignment.message, peaks: labelled, hypotheses, calibration, notes: assignment.notes };
+  } catch (error) {
+    if (error instanceof EngineError) return failedResult(error.message, unlabelled(peaks));
+    throw error;
+  }
+}
