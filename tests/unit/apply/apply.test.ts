@@ -171,17 +171,4 @@ describe('applyCalibration', () => {
       'The lineout has 100 spectral pixels but the calibration was made for 2048.',
     );
   });
-
-  it('runs in under 20 ms for 2048 pixels (best of 20)', () => {
-    for (const c of [cal, { ...cal, filters: ['Al', 'Zr 100nm'] }]) {
-      let best = Number.POSITIVE_INFINITY;
-      for (let i = 0; i < 20; i++) {
-        const t0 = performance.now();
-        applyCalibration(lineout, peaks, c, { filterCorrection: c.filters.length > 0 });
-        best = Math.min(best, performance.now() - t0);
-      }
-      console.info(`applyCalibration, 2048 px, ${c.filters.length} filters: best ${best.toFixed(2)} ms`);
-      expect(best).toBeLessThan(20);
-    }
-  });
 });

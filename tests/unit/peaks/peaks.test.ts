@@ -197,21 +197,11 @@ describe('findPeaks: spatial width, limits and empty results', () => {
     }
   });
 
-  it('fits 40 peaks on a 2048-pixel lineout in well under 30 ms', () => {
+  it('finds all 40 peaks on a 2048-pixel lineout (timing lives in npm run bench)', () => {
     const lines = Array.from({ length: 40 }, (_, i) => ({ pixel: 30 + 50.13 * i, sigmaPx: 1.5, area: 4000 + 300 * i }));
     const { lineout } = syntheticLineout(2048, lines, (e) => e + 30, 13);
-    const times: number[] = [];
-    let found = 0;
-    for (let k = 0; k < 10; k++) {
-      const t0 = performance.now();
-      found = findPeaks(lineout).length;
-      times.push(performance.now() - t0);
-    }
-    const warm = times.slice(4).sort((a, b) => a - b);
-    const medianMs = warm[3];
-    console.info(`findPeaks 40 peaks / 2048 px: median ${medianMs.toFixed(1)} ms (runs ${times.map((t) => t.toFixed(1)).join(', ')})`);
-    expect(found).toBe(40);
-    // Generous bound: other test files share the CPU; the figure itself is reported above.
-    expect(medianMs).toBeLessThan(60);
+    const found = findPeaks(lineout);
+    expect(found).toHaveLength(40);
+    found.forEach((p, i) => expect(Math.abs(p.pixel - lines[i].pixel)).toBeLessThan(0.2));
   });
 });
