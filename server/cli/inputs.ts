@@ -1,5 +1,5 @@
 /** Validation of the CLI's JSON inputs, with messages that name the file's problem. */
-import { z } from 'zod';
+import { type z } from 'zod';
 import { calibrationSchema } from '../../shared/api/calibration.ts';
 import { cliProfileSchema } from '../../shared/api/instrument-profile.ts';
 import { EngineError } from '../../shared/engine/errors.ts';

@@ -10,7 +10,7 @@ export function fieldIssues(error: ZodError): FieldIssue[] {
 }
 
 export const apiNotFound: RequestHandler = (req, _res, next) => {
-  next(new NotFoundError(`No API route ${req.method} ${req.path}.`));
+  next(new NotFoundError(`No API route ${req.method} ${req.originalUrl.split('?')[0]}.`));
 };
 
 function isPostgresUniqueViolation(error: unknown): boolean {
