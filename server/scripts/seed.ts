@@ -27,7 +27,7 @@ export const demoAccounts = [
  * Nominal profiles, invented for the demo but of realistic size. XUV: a 1200 l/mm flat-field
  * grazing-incidence grating at 87° incidence, camera 235 mm away, 2048 × 13.5 µm pixels; the
  * central ray at β = 77.1° gives about 10–32 nm across the chip, wavelength falling with pixel.
- * VUV: a 1200 l/mm normal-incidence grating at 10°, 1 m to the camera, about 108–131 nm.
+ * VUV: a 300 l/mm normal-incidence grating at 10°, 1 m to the camera, about 44–136 nm (harmonics 7–17 of 800 nm).
  */
 export const demoInstruments: { name: string; description: string; profile: InstrumentProfileInput; members: Partial<Record<(typeof demoAccounts)[number]['email'], Role>> }[] = [
   {
@@ -57,13 +57,13 @@ export const demoInstruments: { name: string; description: string; profile: Inst
     description: 'Invented demo instrument of the fictional Lindqvist Attosecond Lab: 1 m normal-incidence spectrometer for low harmonics.',
     profile: {
       spectralAxis: 'x',
-      grooveDensityPerMm: 1200,
+      grooveDensityPerMm: 300,
       incidenceAngleDeg: 10,
       detectorDistanceMm: 1000,
       pixelPitchUm: 13.5,
       wavelengthIncreasesWithPixel: true,
       detectorCenterPixel: 1023.5,
-      detectorAngleDeg: 1.7,
+      detectorAngleDeg: 8.43,
       pixelCount: 2048,
       notes: 'Invented demo data: nominal values only, not a real instrument.',
     },

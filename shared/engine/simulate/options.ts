@@ -63,6 +63,7 @@ export function resolveScenario(scenario: SimScenario): ResolvedScenario {
   finite('spatialFwhmPx', s.spatialFwhmPx, 0.05, 1e5);
   finite('spatialReferenceHarmonic', s.spatialReferenceHarmonic, 1e-6);
   finite('spatialCentrePx', s.spatialCentrePx);
+  for (const [q, weight] of Object.entries(s.harmonicWeights ?? {})) finite(`harmonicWeights[${q}]`, weight, 0);
   const bitDepth = s.bitDepth ?? 16;
   if (bitDepth !== 16 && bitDepth !== 'float') fail('bitDepth', "must be 16 or 'float'");
   const typeMax = bitDepth === 16 ? 65535 : Infinity;

@@ -65,7 +65,7 @@ function envelopePhotons(s: ResolvedScenario, q: number): number {
   let value = s.envelope.plateauPhotons * cutoff * rise;
   if (q % 2 === 0) value *= s.parity === 'all' ? s.evenRelativeStrength : 0;
   if (s.missingHarmonics.includes(q)) value *= s.missingRelativeStrength;
-  return value;
+  return value * (s.harmonicWeights?.[q] ?? 1);
 }
 
 /** The true first-order wavelength at every spectral pixel. */

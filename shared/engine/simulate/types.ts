@@ -88,6 +88,8 @@ export interface SimScenario {
   missingHarmonics?: number[];
   /** Strength left to a missing harmonic, relative. @default 0.01 */
   missingRelativeStrength?: number;
+  /** Per-harmonic multipliers of the envelope (e.g. a modulation along a scan), keyed by q. @default {} */
+  harmonicWeights?: Record<number, number>;
   /** Filter foils in the beam; transmissions multiply. @default [] */
   filters?: SimFilter[];
   /** Photons of the m = 2 line of a harmonic relative to its m = 1 line; 0 = none. @default 0.05 */
