@@ -47,6 +47,9 @@ pg_init "$PG_DIR"
 pg_start "$PG_DIR" "$PG_PORT"
 pg_create_db "$PG_PORT" "$DB_NAME"
 export DATABASE_URL="${DATABASE_URL:-postgres://postgres@127.0.0.1:$PG_PORT/$DB_NAME}"
+# Uploaded frame files (content-addressed, ab/cd/<sha256>) live beside the database in .data/.
+export FRAME_STORAGE_DIR="${FRAME_STORAGE_DIR:-$ROOT/.data/frames}"
+mkdir -p "$FRAME_STORAGE_DIR"
 
 # The client bundle is rebuilt when missing or older than anything it is built from.
 client_stale() {

@@ -23,6 +23,15 @@ import { instrumentsRouter } from './modules/instruments/routes.ts';
 import { invitationsRouter, membersRouter } from './modules/members/routes.ts';
 import { outboxRouter } from './modules/outbox/routes.ts';
 import { auditRouter } from './modules/audit/routes.ts';
+import { framesRouter, instrumentFramesRouter } from './modules/frames/routes.ts';
+import { instrumentVersionsRouter, versionsRouter, workbenchRouter } from './modules/versions/routes.ts';
+import { createLocalStore } from './storage/local-store.ts';
+import type { FrameStore } from './storage/frame-store.ts';
+import { frameSpectraRouter, instrumentSpectraRouter, runsRouter } from './modules/spectra/routes.ts';
+import { dbSources } from './modules/spectra/sources.ts';
+import type { ApplyQueue } from './modules/runs/queue.ts';
+import { unavailableQueue } from './modules/runs/unavailable-queue.ts';
+import { afterVersionTransition } from './modules/notices/service.ts';
 
 export interface AppDeps {
   config: Pick<Config, 'sessionSecret' | 'appUrl' | 'staticDir' | 'signInLimitPerMinute'>;
@@ -32,7 +41,13 @@ export interface AppDeps {
   mailer: Mailer;
   /** Request log sink; default console.info. */
   log?: (line: string) => void;
+  /** Frame storage and upload limit; default a local store in .data/frames and 256 MiB. */
+  frames?: { store: FrameStore; maxBytes: number };
+  /** The apply job queue (issue 5); without it, starting a run answers 503. */
+  applyQueue?: ApplyQueue;
 }
+
+const DEFAULT_FRAME_MAX_BYTES = 256 * 1024 * 1024;
 
 const SESSION_MAX_AGE_MS = 14 * 24 * 3600 * 1000;
 
@@ -79,6 +94,16 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/invitations', invitationsRouter(db));
   app.use('/api/outbox', outboxRouter(db));
   app.use('/api/audit', auditRouter(db));
+  const frameDeps = { db, store: deps.frames?.store ?? createLocalStore('.data/frames'), maxBytes: deps.frames?.maxBytes ?? DEFAULT_FRAME_MAX_BYTES };
+  app.use('/api/instruments', instrumentFramesRouter(frameDeps));
+  app.use('/api/frames', framesRouter(frameDeps));
+  app.use('/api/instruments', instrumentVersionsRouter(frameDeps));
+  app.use('/api/versions', versionsRouter(frameDeps, (t, v, actorId, comment) => afterVersionTransition({ db, mailer, appUrl: config.appUrl }, t, v, actorId, comment)));
+  app.use('/api/workbench', workbenchRouter(frameDeps));
+  const spectraDeps = { db, store: frameDeps.store, sources: dbSources, mailer, appUrl: config.appUrl, queue: deps.applyQueue ?? unavailableQueue };
+  app.use('/api/frames', frameSpectraRouter(spectraDeps));
+  app.use('/api/instruments', instrumentSpectraRouter(spectraDeps));
+  app.use('/api/runs', runsRouter(spectraDeps));
   app.use('/api', apiNotFound);
 
   const staticDir = resolve(config.staticDir);

@@ -7,6 +7,10 @@ import { createDb, createPool } from './db/client.ts';
 import { runMigrations } from './db/migrate.ts';
 import { createMailer } from './mail/mailer.ts';
 import { startMailSink, type MailSink } from './mail/sink.ts';
+import { frameStoreFromConfig } from './storage/from-config.ts';
+import { pgBossQueue, startBoss } from './modules/runs/queue.ts';
+import { startApplyWorkers, type ApplyWorkers } from './modules/runs/worker.ts';
+import { dbSources } from './modules/spectra/sources.ts';
 
 export interface RunningServer {
   url: string;
@@ -38,7 +42,20 @@ export async function startServer(overrides: Partial<Config> = {}): Promise<Runn
     smtpUrl = url.toString();
   }
   const mailer = createMailer(smtpUrl, config.mailFrom, config.mailSink);
-  const app = createApp({ config, db, pool, mailer });
+  // Frame files: the local folder or S3 (FRAME_STORAGE); the apply queue and, by default, its workers.
+  const frameStore = frameStoreFromConfig({ frameStorage: config.frameStorage, s3: config.s3, localDir: config.frameStorageDir });
+  const frames = { store: frameStore.store, maxBytes: config.frameMaxBytes };
+  const boss = await startBoss({ databaseUrl: config.databaseUrl, expireInSeconds: config.applyJobExpireS, maintenanceIntervalSeconds: config.queueMaintenanceS });
+  const applyQueue = pgBossQueue(boss, config.applyJobExpireS);
+  let workers: ApplyWorkers | undefined;
+  if (config.workersInProcess) {
+    workers = await startApplyWorkers(
+      { db, store: frameStore.store, sources: dbSources, mailer, appUrl: config.appUrl },
+      boss,
+      { concurrency: config.workerConcurrency },
+    );
+  }
+  const app = createApp({ config, db, pool, mailer, frames, applyQueue });
 
   const server: Server = await new Promise((resolve, reject) => {
     const s = app.listen(config.port, config.host, (error?: Error) => (error ? reject(error) : resolve(s)));
@@ -54,6 +71,9 @@ export async function startServer(overrides: Partial<Config> = {}): Promise<Runn
       closed ??= (async () => {
         server.closeAllConnections();
         await new Promise<void>((resolve) => server.close(() => resolve()));
+        await workers?.stop();
+        await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
+        frameStore.close();
         mailer.close();
         await sink?.close();
         await pool.end();

@@ -38,3 +38,20 @@ export async function requireManage(db: Executor, user: SessionUser, instrumentI
   if (!access.canManage) throw new ForbiddenError(`Only owners of this instrument and site admins may ${what}.`);
   return access;
 }
+
+/**
+ * As `instrumentAccess`, then 403 unless the user's role is one of `roles` or they are a site
+ * admin (who may do everything a role may). `what` completes "…may <what>."
+ */
+export async function requireRole(db: Executor, user: SessionUser, instrumentId: string, roles: readonly Role[], what: string): Promise<InstrumentAccess> {
+  const access = await instrumentAccess(db, user, instrumentId);
+  if (!access.isAdmin && !(access.role && roles.includes(access.role))) {
+    throw new ForbiddenError(`Only ${describeRoles(roles)} of this instrument and site admins may ${what}.`);
+  }
+  return access;
+}
+
+function describeRoles(roles: readonly Role[]): string {
+  const plural = roles.map((r) => `${r}s`);
+  return plural.length <= 1 ? (plural[0] ?? 'nobody') : `${plural.slice(0, -1).join(', ')} and ${plural.at(-1)}`;
+}

@@ -9,7 +9,7 @@ import { findPeaks } from '../../shared/engine/peaks.ts';
 import { applyCalibration } from '../../shared/engine/apply.ts';
 import { EngineError } from '../../shared/engine/errors.ts';
 import { parseProfile, parseCalibrationFile } from './inputs.ts';
-import type { Calibration, Parity, SpatialBand } from '../../shared/engine/types.ts';
+import type { Calibration, LineShape, Parity, SpatialBand } from '../../shared/engine/types.ts';
 
 export interface CliFailure {
   status: 'failed';
@@ -59,10 +59,16 @@ export interface ApplyArgs {
   darkBytes?: Uint8Array;
   page?: number;
   calibrationJson: unknown;
+  /**
+   * Signal/background bands and line shape to reduce with instead of the calibration's own (the
+   * server passes a frame's or instrument's saved regions). Omitted: the calibration's, as
+   * `orderly apply` does.
+   */
+  regions?: { signal: SpatialBand; background: SpatialBand[]; lineShape?: LineShape };
 }
 
-/** Applies a stored calibration with the signal/background bands and line shape it was made with. */
-export async function runApply(args: ApplyArgs) {
+/** `runApply` with the pieces the server also needs: the detected peaks and the parsed calibration. */
+export async function runApplyDetailed(args: ApplyArgs) {
   const calibration: Calibration = parseCalibrationFile(args.calibrationJson);
   const frame = await decodeFrame(args.frameBytes, { page: args.page });
   const dark = args.darkBytes ? await decodeFrame(args.darkBytes, { page: args.page }) : undefined;
@@ -73,13 +79,22 @@ export async function runApply(args: ApplyArgs) {
       `frame has ${spectralLength} spectral pixels but the calibration was made for ${calibration.pixelCount}`,
     );
   }
+  // Empty background list → the engine's automatic bands, as for `orderly calibrate`.
+  const bands = args.regions
+    ? { ...args.regions, background: args.regions.background.length > 0 ? args.regions.background : undefined }
+    : { signal: calibration.signal, background: calibration.background, lineShape: calibration.lineShape };
   const lineout = reduceFrame(frame, {
     spectralAxis: calibration.spectralAxis,
     dark,
-    signal: calibration.signal,
-    background: calibration.background,
-    lineShape: calibration.lineShape,
+    signal: bands.signal,
+    background: bands.background,
+    lineShape: bands.lineShape,
   });
   const peaks = findPeaks(lineout);
-  return applyCalibration(lineout, peaks, calibration);
+  return { spectrum: applyCalibration(lineout, peaks, calibration), peaks, calibration };
+}
+
+/** Applies a stored calibration with the signal/background bands and line shape it was made with. */
+export async function runApply(args: ApplyArgs) {
+  return (await runApplyDetailed(args)).spectrum;
 }

@@ -13,6 +13,9 @@ import { createDb, createPool, type Db } from '../db/client.ts';
 import { runMigrations } from '../db/migrate.ts';
 import { instruments, memberships, users } from '../db/schema/index.ts';
 import { hashPassword } from '../auth/password.ts';
+import { loadConfig } from '../config.ts';
+import { frameStoreFromConfig } from '../storage/from-config.ts';
+import { seedDemoStories } from './demo/seed-story.ts';
 
 /** The fixed demo sign-ins (the README lists them). */
 export const demoAccounts = [
@@ -117,12 +120,21 @@ export async function seedDemo(db: Db): Promise<{ users: number; instruments: nu
 }
 
 async function main(): Promise<void> {
-  const databaseUrl = process.env.DATABASE_URL ?? 'postgres://postgres@127.0.0.1:5479/orderly';
+  const databaseUrl = loadConfig().databaseUrl;
   await runMigrations(databaseUrl);
   const pool = createPool(databaseUrl, 2);
   try {
-    const added = await seedDemo(createDb(pool));
-    console.log(`Seeded the invented "Lindqvist Attosecond Lab" demo: added ${added.users} users, ${added.instruments} instruments, ${added.memberships} memberships.`);
+    const db = createDb(pool);
+    const added = await seedDemo(db);
+    const config = loadConfig();
+    const { store, close } = frameStoreFromConfig({ frameStorage: config.frameStorage, s3: config.s3, localDir: config.frameStorageDir });
+    const started = Date.now();
+    try {
+      const story = await seedDemoStories({ db, store });
+      console.log(`Seeded the invented "Lindqvist Attosecond Lab" demo: added ${added.users} users, ${added.instruments} instruments, ${added.memberships} memberships, ${story.frames} simulated frames, ${story.versions} calibration versions (${((Date.now() - started) / 1000).toFixed(1)} s).`);
+    } finally {
+      close();
+    }
     console.log('Demo sign-ins (invented demo accounts):');
     for (const a of demoAccounts) console.log(`  ${a.email.padEnd(24)} ${a.password}${a.isAdmin ? '   (site admin)' : ''}`);
   } finally {

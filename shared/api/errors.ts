@@ -12,6 +12,16 @@ export const errorCodes = {
   forbidden: 403,
   not_found: 404,
   conflict: 409,
+  /** Frame upload refused by the engine's decoder; travels as 400, 413 (too large) or 415 (unknown type). */
+  bad_frame: 400,
+  /** The workbench run is not `unique`, so it cannot become a version. */
+  ambiguous: 400,
+  /** An approved/superseded/withdrawn version cannot change. */
+  immutable: 409,
+  /** A version is in the wrong state for the transition. */
+  state: 409,
+  /** No approved calibration covers the frame's time (issue 5). */
+  no_calibration: 409,
   gone: 410,
   rate_limited: 429,
   internal: 500,

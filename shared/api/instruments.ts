@@ -2,11 +2,15 @@
 import { z } from 'zod';
 import { instrumentProfileSchema, type InstrumentProfileInput } from './instrument-profile.ts';
 import type { Role } from './members.ts';
+import type { Regions } from './frames.ts';
+import { driftThresholdSchema } from './spectra.ts';
 
 /** Per-instrument settings; unknown keys are stripped. */
 export const instrumentSettingsSchema = z.object({
   /** When true (default) nobody approves a calibration version they authored. */
   forbidSelfApproval: z.boolean({ error: 'forbidSelfApproval must be true or false' }).default(true),
+  /** Drift flag threshold (issue 5; owners set it): flagged when |shift| > sigma·σ and > px. Absent → 3 σ and 1 px. */
+  driftThreshold: driftThresholdSchema.optional(),
 });
 export type InstrumentSettings = z.infer<typeof instrumentSettingsSchema>;
 
@@ -46,6 +50,8 @@ export interface Instrument {
   pixelCount: number;
   notes: string;
   settings: InstrumentSettings;
+  /** Default signal/background regions for its frames (PUT …/regions); null = automatic. */
+  regions: Regions | null;
   createdAt: string;
   updatedAt: string;
   myRole: Role | null;

@@ -15,6 +15,39 @@ export const paths = {
   acceptInvitation: (token: string) => `/api/invitations/${enc(token)}/accept`,
   outbox: () => '/api/outbox',
   audit: (instrumentId?: string) => (instrumentId ? `/api/audit?instrumentId=${enc(instrumentId)}` : '/api/audit'),
+  // Frames (issue 4)
+  instrumentFrames: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/frames`,
+  instrumentRegions: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/regions`,
+  /** GET /api/frames with filters; undefined/empty values are left out. */
+  frames: (query: Record<string, string | number | undefined> = {}) => {
+    const qs = Object.entries(query)
+      .filter(([, v]) => v !== undefined && v !== '')
+      .map(([k, v]) => `${enc(k)}=${enc(String(v))}`)
+      .join('&');
+    return qs ? `/api/frames?${qs}` : '/api/frames';
+  },
+  frame: (frameId: string) => `/api/frames/${enc(frameId)}`,
+  frameFile: (frameId: string) => `/api/frames/${enc(frameId)}/file`,
+  framesBulkUpdate: () => '/api/frames/bulk-update',
+  // Workbench and versions (issue 4)
+  workbenchRuns: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/workbench/runs`,
+  workbenchRun: (runId: string) => `/api/workbench/runs/${enc(runId)}`,
+  instrumentVersions: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/versions`,
+  version: (versionId: string) => `/api/versions/${enc(versionId)}`,
+  versionSubmit: (versionId: string) => `/api/versions/${enc(versionId)}/submit`,
+  versionApprove: (versionId: string) => `/api/versions/${enc(versionId)}/approve`,
+  versionReject: (versionId: string) => `/api/versions/${enc(versionId)}/reject`,
+  versionWithdraw: (versionId: string) => `/api/versions/${enc(versionId)}/withdraw`,
+  // Spectra, runs, drift (issue 5)
+  frameSpectrum: (frameId: string, version?: number) => `/api/frames/${enc(frameId)}/spectrum${version !== undefined ? `?version=${version}` : ''}`,
+  frameSpectrumCsv: (frameId: string, version?: number) => `/api/frames/${enc(frameId)}/spectrum.csv${version !== undefined ? `?version=${version}` : ''}`,
+  instrumentRuns: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/runs`,
+  instrumentReapply: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/spectra/reapply`,
+  instrumentDrift: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/drift`,
+  run: (runId: string) => `/api/runs/${enc(runId)}`,
+  runCancel: (runId: string) => `/api/runs/${enc(runId)}/cancel`,
+  runRetry: (runId: string) => `/api/runs/${enc(runId)}/retry`,
+  runScan: (runId: string, period?: number | 'detect') => `/api/runs/${enc(runId)}/scan${period !== undefined ? `?period=${enc(String(period))}` : ''}`,
   /** The page (not API) an invitation mail links to, relative to APP_URL. */
   invitePage: (token: string) => `/invite/${enc(token)}`,
 } as const;

@@ -4,7 +4,7 @@
  * with their yields. Output uses plain number arrays because it is serialised as JSON.
  */
 import { HC_EV_NM } from './constants.ts';
-import { calibrationDispersionNmPerPixel, calibrationWavelengthToPixel, evaluateCalibration } from './dispersion/evaluate.ts';
+import { calibrationWavelengthToPixel, evaluateCalibrationAxes } from './dispersion/evaluate.ts';
 import { EngineError } from './errors.ts';
 import { filterTransmission, parseFilterSpec } from './references.ts';
 import type { Calibration, Lineout, Peak } from './types.ts';
@@ -84,6 +84,16 @@ function resolveOptions(options: ApplyOptions | undefined) {
   return o;
 }
 
+/**
+ * A plain array copy of a typed array, for JSON. A counted loop: `Array.from` on a typed array
+ * goes through the generic iterator protocol and cost most of this stage's time.
+ */
+function toArray(values: Float64Array): number[] {
+  const out = new Array<number>(values.length);
+  for (let i = 0; i < values.length; i++) out[i] = values[i];
+  return out;
+}
+
 /** Linear interpolation of a per-pixel array at a fractional pixel (clamped to the ends). */
 function at(values: Float64Array, pixel: number): number {
   const n = values.length;
@@ -155,8 +165,7 @@ export function applyCalibration(lineout: Lineout, peaks: readonly Peak[], cal: 
   const notes: string[] = [];
   const pixels = new Float64Array(n);
   for (let i = 0; i < n; i++) pixels[i] = i;
-  const { wavelengthNm, wavelengthSigmaNm } = evaluateCalibration(cal, pixels);
-  const slope = calibrationDispersionNmPerPixel(cal, pixels);
+  const { wavelengthNm, wavelengthSigmaNm, dispersionNmPerPixel: slope } = evaluateCalibrationAxes(cal, pixels);
   const energyEv = new Float64Array(n);
   const intensity = new Float64Array(n);
   const intensitySigma = new Float64Array(n);
@@ -264,15 +273,15 @@ export function applyCalibration(lineout: Lineout, peaks: readonly Peak[], cal: 
   const cutoffEv = firstOrderSeen.length > 0 ? Math.max(...firstOrderSeen.map((x) => x.energyEv)) : undefined;
 
   return {
-    pixel: Array.from(pixels),
-    wavelengthNm: Array.from(wavelengthNm),
-    wavelengthSigmaNm: Array.from(wavelengthSigmaNm),
-    energyEv: Array.from(energyEv),
-    intensity: Array.from(intensity),
-    intensitySigma: Array.from(intensitySigma),
-    intensityPerEv: Array.from(perEv),
-    intensityPerEvSigma: Array.from(perEvSigma),
-    ...(transmission ? { filterTransmission: Array.from(transmission) } : {}),
+    pixel: toArray(pixels),
+    wavelengthNm: toArray(wavelengthNm),
+    wavelengthSigmaNm: toArray(wavelengthSigmaNm),
+    energyEv: toArray(energyEv),
+    intensity: toArray(intensity),
+    intensitySigma: toArray(intensitySigma),
+    intensityPerEv: toArray(perEv),
+    intensityPerEvSigma: toArray(perEvSigma),
+    ...(transmission ? { filterTransmission: toArray(transmission) } : {}),
     orders,
     ...(cutoffEv !== undefined ? { cutoffEv } : {}),
     notes,

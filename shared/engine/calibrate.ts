@@ -129,6 +129,12 @@ function fitMap(
   const free = freeParameters(points.length);
   const g = hypothesis.geometry;
   const fit = fitGratingMap(points, g, {
+    // The start is the assigner's own least-squares geometry for these very points (searched from
+    // several starts there), so extra restarts only repeat that search.
+    restarts: 0,
+    // From that start Gauss–Newton converges in a handful of steps; the cap bounds the
+    // leave-one-out refits (one per point) that would otherwise polish to 1e-14 relative.
+    maxIterations: 25,
     free,
     bounds: {
       detectorAngleDeg: [g.detectorAngleDeg - 2, g.detectorAngleDeg + 2],

@@ -17,7 +17,7 @@ export function AppLayout() {
   return (
     <div className="flex min-h-screen flex-col">
       <header className="bg-slate-900 text-white">
-        <div className="mx-auto flex h-14 max-w-6xl items-center gap-6 px-4 sm:px-6">
+        <div className="mx-auto flex h-14 max-w-7xl items-center gap-6 px-4 sm:px-6">
           <NavLink to={user ? '/instruments' : '/sign-in'} className="flex items-center gap-2 text-lg font-semibold tracking-tight">
             <span aria-hidden className="inline-block size-3 rounded-sm bg-accent-500" />
             Orderly
@@ -27,6 +27,9 @@ export function AppLayout() {
               <nav aria-label="Main" className="flex items-center gap-1">
                 <NavLink to="/instruments" className={navClass}>
                   Instruments
+                </NavLink>
+                <NavLink to="/frames" className={navClass}>
+                  Frames
                 </NavLink>
                 {user.isAdmin ? (
                   <NavLink to="/outbox" className={navClass}>
@@ -55,7 +58,7 @@ export function AppLayout() {
           ) : null}
         </div>
       </header>
-      <main className="mx-auto w-full max-w-6xl flex-1 px-4 py-8 sm:px-6">
+      <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-8 sm:px-6">
         <Outlet />
       </main>
       <footer className="border-t border-slate-200 py-4 text-center text-xs text-slate-500">

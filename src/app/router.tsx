@@ -11,6 +11,10 @@ import { MembersRoute } from './routes/members';
 import { OutboxRoute } from './routes/outbox';
 import { AccountRoute } from './routes/account';
 import { NotFoundRoute } from './routes/not-found';
+import { FramesRoute } from './routes/frames';
+import { FrameViewerRoute } from './routes/frame-viewer';
+import { WorkbenchRoute } from './routes/workbench';
+import { VersionRoute } from './routes/version';
 
 /** Every page of the client. Public: sign-in and the invitation link; the rest needs a session. */
 export const routes = [
@@ -29,6 +33,10 @@ export const routes = [
           { path: '/instruments/:instrumentId/edit', element: <EditInstrumentRoute /> },
           { path: '/instruments/:instrumentId/members', element: <MembersRoute /> },
           { path: '/account', element: <AccountRoute /> },
+          { path: '/frames', element: <FramesRoute /> },
+          { path: '/frames/:frameId', element: <FrameViewerRoute /> },
+          { path: '/instruments/:instrumentId/workbench', element: <WorkbenchRoute /> },
+          { path: '/versions/:versionId', element: <VersionRoute /> },
         ],
       },
       { element: <RequireAuth adminOnly />, children: [{ path: '/outbox', element: <OutboxRoute /> }] },

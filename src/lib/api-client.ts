@@ -35,7 +35,7 @@ const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
 
 export interface RequestOptions {
   method?: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE';
-  /** Serialised as JSON. */
+  /** Serialised as JSON; a FormData body is sent as multipart (the browser sets its boundary). */
   body?: unknown;
   signal?: AbortSignal;
 }
@@ -62,7 +62,8 @@ async function toApiError(response: Response): Promise<ApiError> {
 async function send(url: string, options: RequestOptions, refreshToken: boolean): Promise<Response> {
   const method = options.method ?? 'GET';
   const headers: Record<string, string> = { Accept: 'application/json' };
-  if (options.body !== undefined) headers['Content-Type'] = 'application/json';
+  const multipart = typeof FormData !== 'undefined' && options.body instanceof FormData;
+  if (options.body !== undefined && !multipart) headers['Content-Type'] = 'application/json';
   if (!SAFE_METHODS.has(method)) {
     const token = await csrfTokenProvider({ refresh: refreshToken });
     if (token) headers['X-CSRF-Token'] = token;
@@ -71,7 +72,7 @@ async function send(url: string, options: RequestOptions, refreshToken: boolean)
     method,
     headers,
     credentials: 'same-origin',
-    body: options.body === undefined ? undefined : JSON.stringify(options.body),
+    body: options.body === undefined ? undefined : multipart ? (options.body as FormData) : JSON.stringify(options.body),
     signal: options.signal,
   });
 }
@@ -106,6 +107,9 @@ export const api = {
   get: <T>(url: string, signal?: AbortSignal) => apiRequest<T>(url, { signal }),
   post: <T>(url: string, body?: unknown) => apiRequest<T>(url, { method: 'POST', body: body ?? {} }),
   patch: <T>(url: string, body: unknown) => apiRequest<T>(url, { method: 'PATCH', body }),
+  put: <T>(url: string, body: unknown) => apiRequest<T>(url, { method: 'PUT', body }),
+  /** Multipart POST (file uploads). */
+  upload: <T>(url: string, form: FormData) => apiRequest<T>(url, { method: 'POST', body: form }),
   delete: <T = void>(url: string) => apiRequest<T>(url, { method: 'DELETE' }),
 };
 

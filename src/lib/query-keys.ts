@@ -24,6 +24,32 @@ export const queryKeys = {
     all: ['outbox'] as const,
     list: () => [...queryKeys.outbox.all, 'list'] as const,
   },
+  frames: {
+    all: ['frames'] as const,
+    list: (query: Record<string, string | number | undefined>) => [...queryKeys.frames.all, 'list', query] as const,
+    detail: (frameId: string) => [...queryKeys.frames.all, 'detail', frameId] as const,
+    /** The stored file decoded in the worker (immutable: the file never changes). */
+    decoded: (frameId: string, page: number) => [...queryKeys.frames.all, 'decoded', frameId, page] as const,
+  },
+  versions: {
+    all: ['versions'] as const,
+    list: (instrumentId: string) => [...queryKeys.versions.all, 'list', instrumentId] as const,
+    detail: (versionId: string) => [...queryKeys.versions.all, 'detail', versionId] as const,
+  },
+  spectra: {
+    all: ['spectra'] as const,
+    /** A frame's spectrum; `version` undefined = the version valid at the frame's time. */
+    detail: (frameId: string, version: number | undefined) => [...queryKeys.spectra.all, 'detail', frameId, version ?? 'valid'] as const,
+  },
+  runs: {
+    all: ['runs'] as const,
+    detail: (runId: string) => [...queryKeys.runs.all, 'detail', runId] as const,
+    scan: (runId: string, period: number | 'detect' | undefined) => [...queryKeys.runs.all, 'scan', runId, period ?? 'run'] as const,
+  },
+  drift: {
+    all: ['drift'] as const,
+    series: (instrumentId: string) => [...queryKeys.drift.all, 'series', instrumentId] as const,
+  },
   tokens: {
     all: ['tokens'] as const,
     list: () => [...queryKeys.tokens.all, 'list'] as const,

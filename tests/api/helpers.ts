@@ -10,7 +10,7 @@ import type { Express } from 'express';
 import type { InstrumentProfileInput } from '../../shared/api/instrument-profile.ts';
 import type { Role } from '../../shared/api/members.ts';
 import { paths } from '../../shared/api/paths.ts';
-import { createApp } from '../../server/app.ts';
+import { createApp, type AppDeps } from '../../server/app.ts';
 import { createDb, createPool, type Db } from '../../server/db/client.ts';
 import { createMailer } from '../../server/mail/mailer.ts';
 import { startMailSink } from '../../server/mail/sink.ts';
@@ -27,7 +27,7 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
-export async function startTestApp(options: { signInLimitPerMinute?: number } = {}): Promise<TestApp> {
+export async function startTestApp(options: { signInLimitPerMinute?: number; frames?: AppDeps['frames'] } = {}): Promise<TestApp> {
   const databaseUrl = inject('databaseUrl');
   const pool = createPool(databaseUrl, 5);
   const db = createDb(pool);
@@ -44,6 +44,7 @@ export async function startTestApp(options: { signInLimitPerMinute?: number } = 
     pool,
     mailer,
     log: () => undefined,
+    frames: options.frames,
   });
   return {
     app,

@@ -3,6 +3,7 @@ import { relations } from 'drizzle-orm';
 import { integer, jsonb, pgTable, text } from 'drizzle-orm/pg-core';
 import type { InstrumentProfileInput } from '../../../shared/api/instrument-profile.ts';
 import type { InstrumentSettings } from '../../../shared/api/instruments.ts';
+import type { Regions } from '../../../shared/api/frames.ts';
 import { id, timestamps } from './columns.ts';
 import { memberships } from './memberships.ts';
 import { invitations } from './invitations.ts';
@@ -16,6 +17,8 @@ export const instruments = pgTable('instruments', {
   pixelCount: integer('pixel_count').notNull(),
   notes: text('notes').notNull().default(''),
   settings: jsonb('settings').$type<InstrumentSettings>().notNull().default({ forbidSelfApproval: true }),
+  /** Default signal/background regions for frames without their own (issue 4); null = automatic. */
+  regions: jsonb('regions').$type<Regions>(),
   ...timestamps,
 });
 

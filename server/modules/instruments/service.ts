@@ -31,6 +31,7 @@ export function toInstrument(row: InstrumentRow, myRole: Role | null): Instrumen
     pixelCount: row.pixelCount,
     notes: row.notes,
     settings: row.settings,
+    regions: row.regions ?? null,
     createdAt: row.createdAt.toISOString(),
     updatedAt: row.updatedAt.toISOString(),
     myRole,

@@ -44,9 +44,10 @@ import {
   grow,
   harmonicEnergyEv,
   harmonicStep,
+  linearSeed,
   localSpacing,
   nearestLine,
-  OPAQUE_TRANSMISSION,
+  opaqueTransmission,
   predictLines,
   refit,
   seedStart,
@@ -62,14 +63,24 @@ export const DEFAULT_RANGES: RealignmentRanges = {
   distanceRelative: 0.04,
   centerRelative: 0.06,
   detectorAngleDeg: 0.3,
-  tiltDeg: 3,
+  // The profile carries no detector tilt, so it is a nuisance parameter over a wide range (flat-field
+  // cameras sit several degrees off the central ray's normal; common practice).
+  tiltDeg: 10,
 };
 
 /** Margin in −2 ln L for `unique` (≈ 4σ). */
 export const UNIQUE_MARGIN = 16;
 /** Smallest centroid uncertainty believed, px (sub-0.005 px claims are numerical, not physical). */
 const SIGMA_FLOOR_PX = 0.005;
-const MAX_GROWN_SEEDS = 32;
+const MAX_GROWN_SEEDS = 8;
+/** A one-step slip trailing by this many unique margins makes the two-step slip in that direction pointless to fit. */
+const HOPELESS_SLIP_MARGINS = 50;
+/** A peak whose centre lies within this many FWHM of the detector edge counts as an edge peak. */
+const EDGE_FWHM = 1.5;
+/** Position uncertainty of an edge peak, in FWHM (a truncated line's centre can be off by a fair part of its width). */
+const EDGE_SIGMA_FWHM = 0.15;
+/** Position uncertainty floor of a saturated peak, in FWHM. */
+const SATURATED_SIGMA_FWHM = 0.01;
 
 /** Relative 1σ of the scale when only the driver tolerance bounds it: ±2σ = central 95 % of U[−tol/2, tol/2]. */
 export function unanchoredScaleSigma(tolerancePct: number): number {
@@ -129,13 +140,27 @@ function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
     if (Number.isFinite(peak.pixel) && peak.pixel > -0.5 && peak.pixel < pixelCount - 0.5) usable.push({ peak, index });
   });
   usable.sort((a, b) => a.peak.pixel - b.peak.pixel);
-  const searchPeaks: SearchPeak[] = usable.map(({ peak }) => ({
-    pixel: peak.pixel,
-    sigmaPx: Math.max(Number.isFinite(peak.pixelSigma) && peak.pixelSigma > 0 ? peak.pixelSigma : 0.5, SIGMA_FLOOR_PX),
-    snr: Number.isFinite(peak.snr) ? peak.snr : 1,
-    area: Number.isFinite(peak.area) && peak.area > 0 ? peak.area : Math.max(peak.amplitude * peak.fwhmPx, 1e-12),
-    spatialWidthPx: peak.spatialWidthPx,
-  }));
+  const searchPeaks: SearchPeak[] = usable.map(({ peak }) => {
+    const fwhmPx = Number.isFinite(peak.fwhmPx) && peak.fwhmPx > 0 ? peak.fwhmPx : 3;
+    const edgeDistancePx = Math.min(peak.pixel + 0.5, pixelCount - 0.5 - peak.pixel);
+    // A line within EDGE_FWHM widths of the detector edge is cut by it: its fitted centre is pulled
+    // inward and its area is short, so its position is trusted only to a fraction of its width.
+    const edge = edgeDistancePx < EDGE_FWHM * fwhmPx;
+    let sigmaPx = Math.max(Number.isFinite(peak.pixelSigma) && peak.pixelSigma > 0 ? peak.pixelSigma : 0.5, SIGMA_FLOOR_PX);
+    if (edge) sigmaPx = Math.max(sigmaPx, EDGE_SIGMA_FWHM * fwhmPx);
+    // A clipped (saturated) line's centre is fitted on its flanks only; its area is a lower bound.
+    if (peak.saturated) sigmaPx = Math.max(sigmaPx, SATURATED_SIGMA_FWHM * fwhmPx);
+    return {
+      pixel: peak.pixel,
+      sigmaPx,
+      snr: Number.isFinite(peak.snr) ? peak.snr : 1,
+      area: Number.isFinite(peak.area) && peak.area > 0 ? peak.area : Math.max(peak.amplitude * peak.fwhmPx, 1e-12),
+      spatialWidthPx: peak.spatialWidthPx,
+      fwhmPx,
+      edge,
+      saturated: peak.saturated === true,
+    };
+  });
 
   const lambdaCentre = driverNm * (1 - tol / 2);
   const nominal = new Float64Array(PARAMETER_COUNT);
@@ -202,6 +227,7 @@ function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
     knownPoints,
     transmission,
     pins,
+    opaqueTransmission: opaqueTransmission(searchPeaks.reduce((m, p) => Math.max(m, p.snr), 0)),
   };
   return { ctx, original: usable.map((u) => u.index), tol, notes };
 }
@@ -278,9 +304,11 @@ function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8A
   const used = new Set<number>();
   const firstOrderWidth: { px: number; w: number }[] = [];
   const firstOrderArea = new Map<number, number>();
+  const firstOrderSaturated = new Set<number>();
   for (let i = 0; i < n; i++) {
     if (harmonic[i] > 0 && order[i] === 1) {
       firstOrderArea.set(harmonic[i], ctx.peaks[i].area);
+      if (ctx.peaks[i].saturated) firstOrderSaturated.add(harmonic[i]);
       if (Number.isFinite(ctx.peaks[i].spatialWidthPx)) firstOrderWidth.push({ px: ctx.peaks[i].pixel, w: ctx.peaks[i].spatialWidthPx });
     }
   }
@@ -301,7 +329,7 @@ function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8A
     if (!(cost < spurious)) continue;
     // A second-order line cannot outshine its own first-order line (gratings put far less into m = 2).
     const a1 = firstOrderArea.get(q);
-    if (a1 !== undefined && pk.area > a1) continue;
+    if (a1 !== undefined && pk.area > a1 && !firstOrderSaturated.has(q)) continue;
     // Divergence falls with harmonic order: the m = 2 line of q is narrower than the m = 1 line of ~q/2 beside it.
     if (Number.isFinite(pk.spatialWidthPx) && firstOrderWidth.length >= 2) {
       const near = [...firstOrderWidth].sort((a, b) => Math.abs(a.px - pk.pixel) - Math.abs(b.px - pk.pixel)).slice(0, 2);
@@ -325,7 +353,7 @@ function findBlends(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, 
   for (let i = 0; i < harmonic.length; i++) {
     if (!(harmonic[i] > 0 && order[i] === 1)) continue;
     const q2 = 2 * harmonic[i];
-    if (ctx.transmission(harmonicEnergyEv(lambda0, q2)) < OPAQUE_TRANSMISSION) continue;
+    if (ctx.transmission(harmonicEnergyEv(lambda0, q2)) < ctx.opaqueTransmission) continue;
     const px = wavelengthToPixel(g, lambda0 / q2, 1);
     const onDetector = Number.isFinite(px) && px > -0.5 && px < ctx.model.pixelCount - 0.5;
     // If harmonic 2k is on the detector in m = 1 and not seen, its m = 2 share is negligible.
@@ -365,13 +393,28 @@ function rematch(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, par
 }
 
 function finish(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>): Candidate {
-  let state = refit(ctx, harmonic, order, start);
-  if (rematch(ctx, harmonic, order, state.fit.parameters)) state = refit(ctx, harmonic, order, state.fit.parameters);
+  let state = refit(ctx, harmonic, order, start, true);
+  if (rematch(ctx, harmonic, order, state.fit.parameters)) state = refit(ctx, harmonic, order, state.fit.parameters, true);
   const dof = Math.max(1, state.points.length - state.fit.freeIndices.length);
   const before = order.filter((m) => m === 2).length;
+  const h0 = Int32Array.from(harmonic);
+  const m0 = Int8Array.from(order);
+  const without = rawScore(ctx, h0, m0, state.fit, state.points);
   labelSecondOrder(ctx, harmonic, order, state.fit, dof);
-  if (order.filter((m) => m === 2).length !== before) state = refit(ctx, harmonic, order, state.fit.parameters);
-  const raw = rawScore(ctx, harmonic, order, state.fit, state.points);
+  let raw = without;
+  if (order.filter((m) => m === 2).length !== before) {
+    // Keep the m = 2 labels only if the labelling with them scores better as a whole: a false
+    // peak taken for an m = 2 line must not drag the fit of the real lines.
+    const withState = refit(ctx, harmonic, order, state.fit.parameters, true);
+    const withRaw = rawScore(ctx, harmonic, order, withState.fit, withState.points);
+    if (totalScore(withRaw, 1) <= totalScore(without, 1) || !Number.isFinite(totalScore(without, 1))) {
+      state = withState;
+      raw = withRaw;
+    } else {
+      harmonic.set(h0);
+      order.set(m0);
+    }
+  }
   return { harmonic, order, fit: state.fit, points: state.points, raw, blends: findBlends(ctx, harmonic, order, state.fit) };
 }
 
@@ -388,12 +431,21 @@ function contradicts(a: Candidate, b: Candidate): boolean {
   return false;
 }
 
+/** A seed's implied (peak, harmonic) pairs with the harmonics taken relative to the lowest-index peak's. */
+function patternKey(implied: [number, number][]): string {
+  const sorted = [...new Map(implied).entries()].sort((x, y) => x[0] - y[0]);
+  const ref = sorted.length ? sorted[0][1] : 0;
+  return sorted.map(([i, q]) => `${i}:${q - ref}`).join(',');
+}
+
 /** Seeds: (pair of neighbouring peaks, their harmonics) → starting labelling and parameters. */
 function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
   const n = ctx.peaks.length;
   const step = harmonicStep(ctx.parity);
   const kMax = ctx.parity === 'odd' ? 3 : 4;
-  const bySnr = [...ctx.peaks.keys()].sort((a, b) => ctx.peaks[b].snr - ctx.peaks[a].snr);
+  // A saturated line is among the brightest whatever its fitted SNR (its clipped core is down-weighted).
+  const rank = (i: number): number => (ctx.peaks[i].saturated ? Number.POSITIVE_INFINITY : ctx.peaks[i].snr);
+  const bySnr = [...ctx.peaks.keys()].sort((a, b) => rank(b) - rank(a) || ctx.peaks[b].snr - ctx.peaks[a].snr);
   const strong = bySnr.slice(0, Math.min(8, n));
   const pairSet = new Set<string>();
   const pairs: [number, number][] = [];
@@ -410,27 +462,47 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
     addPair(p, p - 1);
     addPair(p, p + 1);
   }
-  for (const s of bySnr.slice(0, Math.min(4, n))) {
-    addPair(s, s - 1);
-    addPair(s, s + 1);
+  // Edge peaks are poor seeds (truncated lines); neighbours of the strongest clean peaks, and every
+  // pair among the strongest few, so that a labelling can start from two first-order lines even when
+  // m = 2 lines or false peaks sit between them.
+  const clean = bySnr.filter((i) => !ctx.peaks[i].edge);
+  const seedPool = clean.length >= 2 ? clean : bySnr;
+  const adjacent = new Set<string>();
+  for (const s of seedPool.slice(0, Math.min(4, seedPool.length))) {
+    for (const t of [s - 1, s + 1]) {
+      if (t >= 0 && t < n && !ctx.peaks[t].edge) {
+        addPair(s, t);
+        adjacent.add(`${Math.min(s, t)},${Math.max(s, t)}`);
+      }
+    }
   }
+  const top = seedPool.slice(0, Math.min(5, seedPool.length));
+  for (let x = 0; x < top.length; x++) for (let y = x + 1; y < top.length; y++) addPair(top[x], top[y]);
   const incr = ctx.model.wavelengthIncreasesWithPixel;
   interface Seed {
     harmonic: Int32Array;
     start: Float64Array;
     matches: number;
-    prior: number;
-    chi: number;
+    /** Peaks of any strength on the seed's predicted lines. */
+    matchesAll: number;
+    /** Plausibility of the seed's geometry (lower is better); ranks seeds with equal matches. */
+    cost: number;
     key: string;
+    /** (peak, harmonic) pairs the seed implies: its two peaks and the strong peaks on its lines. */
+    implied: [number, number][];
   }
   const seeds: Seed[] = [];
   for (const [a, b] of pairs) {
     const [qLo, qHi] = candidateHarmonics(ctx, a, tol);
+    const [qbLo, qbHi] = candidateHarmonics(ctx, b, tol);
+    const near = adjacent.has(`${a},${b}`);
     for (let qa = qLo; qa <= qHi; qa++) {
       if (!allowedHarmonic(ctx.parity, qa)) continue;
       if (ctx.pins.has(a) && ctx.pins.get(a) !== qa) continue;
-      for (let k = 1; k <= kMax; k++) {
+      const kHi = near ? kMax : Math.max(kMax, Math.ceil(Math.abs(incr ? qa - qbLo : qbHi - qa) / step));
+      for (let k = 1; k <= kHi; k++) {
         const qb = incr ? qa - k * step : qa + k * step;
+        if (!near && (qb < qbLo || qb > qbHi)) continue;
         if (!allowedHarmonic(ctx.parity, qb)) continue;
         if (ctx.pins.has(b) && ctx.pins.get(b) !== qb) continue;
         const harmonic = new Int32Array(n);
@@ -438,47 +510,76 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
         if ([...ctx.pins.entries()].some(([p, q]) => (p === a && q !== qa) || (p === b && q !== qb))) continue;
         harmonic[a] = qa;
         harmonic[b] = qb;
-        const start = seedStart(ctx, a, qa);
-        if (!start) continue;
-        // Cheap check before any fit: with A placed, B must land within ±20 % of its separation
-        // (distance ±4 % and tilt ±3° cannot stretch the dispersion further).
-        const lambda0 = start[P_DRIVER];
-        const predB = predictPixel(ctx.model, start, lambda0 / qb);
-        const sep = ctx.peaks[b].pixel - ctx.peaks[a].pixel;
-        if (!Number.isFinite(predB) || Math.abs(predB - ctx.peaks[b].pixel) > 0.2 * Math.abs(sep)) continue;
-        const order = new Int8Array(n);
-        for (let i = 0; i < n; i++) if (harmonic[i] > 0) order[i] = 1;
-        const state = refit(ctx, harmonic, order, start);
-        if (!(state.fit.chiSquarePrior < 50) || !(state.fit.chiSquarePosition < 1e4)) continue;
-        const lines = predictLines(ctx, state.fit.parameters, 1);
+        let seedParams: Float64Array;
+        let seedCost: number;
+        if (ctx.angleKnown) {
+          // Linear placement of the pair (no iterative fit): most seeds die here for free.
+          const lin = linearSeed(ctx, a, qa, b, qb, tol);
+          if (!lin) continue;
+          seedParams = lin.start;
+          seedCost = lin.cost;
+        } else {
+          const start = seedStart(ctx, a, qa);
+          if (!start) continue;
+          // Cheap check before any fit: with A placed, B must land within ±20 % of its separation.
+          const predB = predictPixel(ctx.model, start, start[P_DRIVER] / qb);
+          const sep = ctx.peaks[b].pixel - ctx.peaks[a].pixel;
+          if (!Number.isFinite(predB) || Math.abs(predB - ctx.peaks[b].pixel) > 0.2 * Math.abs(sep)) continue;
+          const order = new Int8Array(n);
+          for (let i = 0; i < n; i++) if (harmonic[i] > 0) order[i] = 1;
+          const state = refit(ctx, harmonic, order, start);
+          if (!(state.fit.chiSquarePrior < 50) || !(state.fit.chiSquarePosition < 1e4)) continue;
+          seedParams = state.fit.parameters;
+          seedCost = state.fit.chiSquarePrior + 1e-3 * state.fit.chiSquarePosition;
+        }
+        const lines = predictLines(ctx, seedParams, 1);
         let matches = 0;
         let key = '';
+        const implied: [number, number][] = [[a, qa], [b, qb]];
         for (const s of strong) {
           const j = nearestLine(lines, ctx.peaks[s].pixel);
           if (j < 0) continue;
           if (Math.abs(ctx.peaks[s].pixel - lines.pixel[j]) < 0.12 * localSpacing(lines, j)) {
             matches++;
             key += `${s}:${lines.harmonic[j]},`;
+            implied.push([s, lines.harmonic[j]]);
           }
         }
-        seeds.push({ harmonic, start: state.fit.parameters, matches, prior: state.fit.chiSquarePrior, chi: state.fit.chiSquarePosition, key });
+        // All peaks on predicted lines: separates seeds that all explain the few strongest peaks.
+        let matchesAll = 0;
+        for (let i = 0; i < n; i++) {
+          const j = nearestLine(lines, ctx.peaks[i].pixel);
+          if (j >= 0 && Math.abs(ctx.peaks[i].pixel - lines.pixel[j]) < 0.12 * localSpacing(lines, j)) matchesAll++;
+        }
+        seeds.push({ harmonic, start: seedParams, matches, matchesAll, cost: seedCost, key, implied });
       }
     }
   }
-  seeds.sort((x, y) => y.matches - x.matches || x.prior + x.chi - (y.prior + y.chi));
+  seeds.sort((x, y) => y.matches - x.matches || y.matchesAll - x.matchesAll || x.cost - y.cost);
   const grownKeys = new Set<string>();
+  const grownPatterns = new Set<string>();
+  const grownLabellings: Int32Array[] = [];
   const out = new Map<string, Candidate>();
   let grown = 0;
   const topMatches = seeds.length > 0 ? seeds[0].matches : 0;
   for (const seed of seeds) {
     if (grown >= MAX_GROWN_SEEDS) break;
     // Seeds that explain far fewer strong peaks than the best seed cannot win; growing them wastes time.
-    if (seed.matches < topMatches - 3 && grown >= 8) break;
+    if (seed.matches < topMatches - 2 && grown >= 4) break;
     if (grownKeys.has(seed.key)) continue;
     grownKeys.add(seed.key);
+    // Seeds that differ only by a uniform shift of their implied harmonics are slips of one
+    // pattern: grow the most plausible one; the slips of the leading labelling are fitted in
+    // earnest afterwards (shiftedRivals).
+    const pattern = patternKey(seed.implied);
+    if (grownPatterns.has(pattern)) continue;
+    grownPatterns.add(pattern);
+    // A seed whose implied labels a grown labelling already carries would grow into that labelling.
+    if (grownLabellings.some((h) => seed.implied.every(([i, q]) => h[i] === q))) continue;
     grown++;
     const lab = grow(ctx, seed.harmonic, seed.start);
     if (!lab) continue;
+    grownLabellings.push(lab.harmonic);
     let ok = true;
     for (const [p, q] of ctx.pins) if (lab.harmonic[p] !== q) ok = false;
     if (!ok) continue;
@@ -490,6 +591,73 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
     if (!prev || totalScore(cand.raw, 1) < totalScore(prev.raw, 1)) out.set(key, cand);
   }
   return [...out.values()];
+}
+
+/**
+ * The labellings a slip of the whole comb would give: every first-order label moved by ±1 and ±2
+ * parity steps (m = 2 labels dropped and re-found), each grown and fitted from two starts (the
+ * best fit's geometry with λ0 rescaled into its wall, and the nominal geometry placed on the
+ * strongest clean peak). The search may never seed these when the geometry absorbs the slip, and
+ * they are exactly the rivals that make a confident answer wrong.
+ */
+function shiftedRivals(ctx: SearchContext, best: Candidate): Candidate[] {
+  const n = best.harmonic.length;
+  const step = harmonicStep(ctx.parity);
+  const out: Candidate[] = [];
+  const driverWall = ctx.model.walls[P_DRIVER] as Wall;
+  const s2 = Math.max(1, best.raw.position / best.raw.degreesOfFreedom);
+  const bestScore = totalScore(best.raw, s2);
+  const farBehind = new Set<number>();
+  for (const k of [1, -1, 2, -2]) {
+    // A two-step slip misfits more than the one-step slip the same way; skip it when that one is hopeless.
+    if (Math.abs(k) === 2 && farBehind.has(Math.sign(k))) continue;
+    const shift = k * step;
+    const harmonic = new Int32Array(n);
+    let ok = true;
+    let count = 0;
+    let strongest = -1;
+    for (let i = 0; i < n; i++) {
+      if (!(best.harmonic[i] > 0 && best.order[i] === 1)) continue;
+      const q = best.harmonic[i] + shift;
+      if (!allowedHarmonic(ctx.parity, q) || (ctx.pins.has(i) && ctx.pins.get(i) !== q)) {
+        ok = false;
+        break;
+      }
+      harmonic[i] = q;
+      count++;
+      if (!ctx.peaks[i].edge && (strongest < 0 || ctx.peaks[i].snr > ctx.peaks[strongest].snr)) strongest = i;
+    }
+    if (!ok || count < 2) continue;
+    const starts: Float64Array[] = [];
+    const order1 = new Int8Array(n);
+    for (let i = 0; i < n; i++) if (harmonic[i] > 0) order1[i] = 1;
+    const a = Float64Array.from(best.fit.parameters);
+    // Keep the positions: λ0 scales with the harmonic, then clamp it into the blue-shift wall.
+    let qRef = 0;
+    for (let i = 0; i < n; i++) if (harmonic[i] > 0) qRef = Math.max(qRef, best.harmonic[i]);
+    a[P_DRIVER] = Math.min(driverWall.hi, Math.max(driverWall.lo, (a[P_DRIVER] * (qRef + shift)) / qRef));
+    starts.push(a);
+    starts.push(...labellingStarts(ctx, harmonic, order1));
+    let bestCand: Candidate | null = null;
+    // The slipped labelling keeps the same peaks (no growing: it is the same set of lines read one
+    // step off); only its geometry is searched, from each start, and the best fit is finished.
+    let bestStart: Float64Array | null = null;
+    let bestCost = Infinity;
+    for (const start of starts) {
+      const fit = refit(ctx, harmonic, order1, start).fit;
+      const cost = fit.chiSquarePosition + fit.chiSquarePrior;
+      if (cost < bestCost) {
+        bestCost = cost;
+        bestStart = fit.parameters;
+      }
+    }
+    if (bestStart) bestCand = finish(ctx, Int32Array.from(harmonic), Int8Array.from(order1), bestStart);
+    if (bestCand) {
+      out.push(bestCand);
+      if (totalScore(bestCand.raw, s2) - bestScore > HOPELESS_SLIP_MARGINS * UNIQUE_MARGIN) farBehind.add(Math.sign(k));
+    }
+  }
+  return out;
 }
 
 function toHypothesis(ctx: SearchContext, c: Candidate, s2: number, bestScore: number, original: number[], totalPeaks: number): Hypothesis {
@@ -551,6 +719,70 @@ function toHypothesis(ctx: SearchContext, c: Candidate, s2: number, bestScore: n
   };
 }
 
+/** Starting points for fitting a fixed labelling: the nominal geometry placed on one labelled peak, with the incidence at its nominal value and at both ends of its range. */
+function labellingStarts(ctx: SearchContext, harmonic: Int32Array, order: Int8Array): Float64Array[] {
+  let ref = -1;
+  for (let i = 0; i < harmonic.length; i++) {
+    if (!(harmonic[i] > 0 && order[i] === 1)) continue;
+    if (ref < 0 || (ctx.peaks[ref].edge && !ctx.peaks[i].edge) || (ctx.peaks[i].edge === ctx.peaks[ref].edge && ctx.peaks[i].snr > ctx.peaks[ref].snr)) ref = i;
+  }
+  if (ref < 0) return [];
+  const out: Float64Array[] = [];
+  const inc = ctx.model.walls[P_INCIDENCE] as Wall;
+  for (const incidence of [ctx.model.nominal[P_INCIDENCE], inc.lo, inc.hi]) {
+    const saved = ctx.model.nominal[P_INCIDENCE];
+    ctx.model.nominal[P_INCIDENCE] = incidence;
+    const start = seedStart(ctx, ref, harmonic[ref]);
+    ctx.model.nominal[P_INCIDENCE] = saved;
+    if (start) out.push(start);
+  }
+  return out;
+}
+
+/** How well one given labelling fits (for checks and for "why not this labelling?" displays). */
+export interface LabellingFit {
+  chiSquarePosition: number;
+  chiSquarePrior: number;
+  fittedPoints: number;
+  freeParameters: number;
+  driverNm: number;
+}
+
+/**
+ * Fit one labelling chosen by the caller (harmonic per peak, null = not used; order per peak,
+ * default 1) with the same model, ranges and starts as the search. Null when the labelling
+ * cannot be placed on the detector at all.
+ */
+export function fitLabelling(peaks: Peak[], input: AssignInput, harmonics: (number | null)[], orders?: (number | null)[]): LabellingFit | null {
+  const prepared = prepare(peaks, input);
+  if (typeof prepared === 'string') throw new EngineError('invalid_input', prepared);
+  const { ctx, original } = prepared;
+  const n = ctx.peaks.length;
+  const harmonic = new Int32Array(n);
+  const order = new Int8Array(n);
+  for (let i = 0; i < n; i++) {
+    const q = harmonics[original[i]];
+    if (q !== null && q !== undefined && q > 0) {
+      harmonic[i] = q;
+      order[i] = orders?.[original[i]] ?? 1;
+    }
+  }
+  let best: ModelFit | null = null;
+  let bestPoints = 0;
+  for (const start of labellingStarts(ctx, harmonic, order)) {
+    const state = refit(ctx, harmonic, order, start);
+    const again = refit(ctx, harmonic, order, state.fit.parameters);
+    for (const f of [state.fit, again.fit]) {
+      if (!best || f.chiSquarePosition + f.chiSquarePrior < best.chiSquarePosition + best.chiSquarePrior) {
+        best = f;
+        bestPoints = state.points.length;
+      }
+    }
+  }
+  if (!best) return null;
+  return { chiSquarePosition: best.chiSquarePosition, chiSquarePrior: best.chiSquarePrior, fittedPoints: bestPoints, freeParameters: best.freeIndices.length, driverNm: best.parameters[P_DRIVER] };
+}
+
 /**
  * Assign harmonic (q) and diffraction (m) orders to peaks. Never throws on bad data: returns
  * `failed` with a message (an EngineError from a helper is turned into one).
@@ -576,7 +808,19 @@ function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
   }
   if (!ctx.angleKnown) notes.push('The profile gives no central diffraction angle; it was searched over all angles.');
   const candidates = searchCandidates(ctx, tol);
-  const viable = candidates.filter((c) => c.raw.firstOrderCount >= 2);
+  let viable = candidates.filter((c) => c.raw.firstOrderCount >= 2);
+  if (viable.length > 0) {
+    // Make sure the slips of the leading labelling are in the pool, fitted in earnest.
+    const leader = viable.reduce((a, b) => (totalScore(a.raw, 1) <= totalScore(b.raw, 1) ? a : b));
+    const seen = new Map(viable.map((c) => [labelKey(c.harmonic, c.order), c] as const));
+    for (const c of shiftedRivals(ctx, leader)) {
+      if (c.raw.firstOrderCount < 2) continue;
+      const key = labelKey(c.harmonic, c.order);
+      const prev = seen.get(key);
+      if (!prev || totalScore(c.raw, 1) < totalScore(prev.raw, 1)) seen.set(key, c);
+    }
+    viable = [...seen.values()];
+  }
   if (viable.length === 0) {
     return failed('No labelling of the peaks fits the grating model within the realignment ranges; check the profile (groove density, incidence angle, distance, pixel pitch, direction), the driver wavelength and the parity.', notes);
   }

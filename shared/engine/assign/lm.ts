@@ -142,7 +142,8 @@ export function levenbergMarquardt(problem: LmProblem, start: Float64Array, maxI
         chi = chiTrial;
         lambda = Math.max(lambda / 5, 1e-9);
         improved = true;
-        if (gain < 1e-8 * (1 + chi)) converged = true;
+        // Converged when a step gains less than 1e-6 of χ² (+1): far below the 1-unit changes that matter for scores.
+        if (gain < 1e-6 * (1 + chi)) converged = true;
         break;
       }
       lambda *= 8;

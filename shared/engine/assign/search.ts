@@ -11,6 +11,7 @@ import { HC_EV_NM } from '../constants.ts';
 import { pixelToWavelengthNm } from '../grating.ts';
 import {
   fitModel,
+  type Wall,
   geometryOf,
   predictPixel,
   P_ANGLE,
@@ -24,6 +25,7 @@ import {
   type ModelPoint,
 } from './model.ts';
 import type { Parity } from '../types.ts';
+import { spuriousCost } from './score.ts';
 
 /** A peak as the search sees it (index = position in the usable list). */
 export interface SearchPeak {
@@ -33,6 +35,12 @@ export interface SearchPeak {
   /** Line area (counts), > 0. */
   area: number;
   spatialWidthPx: number;
+  /** Fitted FWHM along the spectral axis, px. */
+  fwhmPx: number;
+  /** Centre within a few widths of the detector edge (line possibly truncated). */
+  edge: boolean;
+  /** Some of the line's pixels were clipped at full scale. */
+  saturated: boolean;
 }
 
 export interface SearchContext {
@@ -48,6 +56,8 @@ export interface SearchContext {
   transmission: (energyEv: number) => number;
   /** peak index → pinned harmonic (m = 1). */
   pins: Map<number, number>;
+  /** Transmission below which no line of this frame can be detected (see opaqueTransmission). */
+  opaqueTransmission: number;
 }
 
 /** A finished labelling. */
@@ -60,8 +70,19 @@ export interface Labelling {
   pointPeak: number[];
 }
 
-/** Transmission below which a line cannot be detected (the filter stack is opaque there). */
+/** Upper bound of the transmission below which a line cannot be detected (the filter stack is opaque there). */
 export const OPAQUE_TRANSMISSION = 1e-3;
+
+/**
+ * Transmission below which no line of this frame could be seen. A bright comb shows lines through
+ * a filter's "opaque" side (an Al foil passing 5e-4 above its edge still shows a plateau line of
+ * SNR 3000 at SNR ~ 60), so the bound scales with the brightest peak: with shot-noise-limited lines
+ * SNR ∝ √(photons), a line is lost below T ≈ (3 / SNR_max)². Never above OPAQUE_TRANSMISSION.
+ */
+export function opaqueTransmission(maxSnr: number): number {
+  const s = Number.isFinite(maxSnr) && maxSnr > 3 ? maxSnr : 3;
+  return Math.min(OPAQUE_TRANSMISSION, Math.max(1e-9, (3 / s) ** 2));
+}
 
 export function harmonicStep(parity: Parity): number {
   return parity === 'odd' ? 2 : 1;
@@ -104,7 +125,7 @@ export function predictLines(ctx: SearchContext, p: ArrayLike<number>, m: number
     if (!allowedHarmonic(ctx.parity, q)) continue;
     // Parity 'all': m = 2 of an even q lands exactly on m = 1 of q/2 — a blend, not a separate line.
     if (m === 2 && ctx.parity === 'all' && q % 2 === 0) continue;
-    if (ctx.transmission(harmonicEnergyEv(lambda0, q)) < OPAQUE_TRANSMISSION) continue;
+    if (ctx.transmission(harmonicEnergyEv(lambda0, q)) < ctx.opaqueTransmission) continue;
     const px = predictPixel(ctx.model, p, (m * lambda0) / q);
     if (Number.isFinite(px)) items.push([px, q]);
   }
@@ -158,18 +179,27 @@ export function labelledPoints(ctx: SearchContext, harmonic: Int32Array, order: 
 /** Which parameters to free for a fit of `count` points (groups freed as data allow). */
 export function freeParameters(ctx: SearchContext, count: number): number[] {
   const free = [ctx.angleKnown ? P_CENTER : P_ANGLE, P_DISTANCE];
-  if (count >= 3) free.push(P_INCIDENCE);
-  if (count >= 5) free.push(P_TILT);
-  if (ctx.anchored && count >= 3) free.push(P_DRIVER);
+  // The incidence is free from two points on: at normal incidence a realignment of it shifts the
+  // whole spectrum by more than the centre's range, so a seed that can only move the centre fails.
+  if (count >= 2) free.push(P_INCIDENCE);
+  // With three or more points every nuisance parameter is free inside its wall: holding one (the
+  // tilt, say) at its nominal value would favour whichever labelling happens to absorb its true value.
+  if (count >= 3) free.push(P_TILT);
+  // λ0 is free inside its blue-shift wall even without an anchor: otherwise the geometry alone has
+  // to absorb the true λ0's offset from the middle of the tolerance, and a rival labelling would be
+  // judged against the wrong scale.
+  if (count >= 3) free.push(P_DRIVER);
   return free;
 }
 
-function fitLabels(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>): { fit: ModelFit; points: ModelPoint[]; pointPeak: number[] } {
+function fitLabels(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>, warm = false): { fit: ModelFit; points: ModelPoint[]; pointPeak: number[] } {
   const { points, pointPeak } = labelledPoints(ctx, harmonic, order);
   const free = freeParameters(ctx, points.length);
-  // Two stages: the shift/scale pair first, then everything free; this keeps LM out of the flat valley's far ends.
-  let fit = fitModel(ctx.model, points, start, free.slice(0, 2));
-  if (free.length > 2) fit = fitModel(ctx.model, points, fit.parameters, free);
+  // Cold starts in two stages: the shift/scale pair first, then everything free; this keeps LM out
+  // of the flat valley's far ends. A warm start (the previous fit of nearly the same labelling) is
+  // already in the valley and goes straight to the full fit.
+  let fit = warm || free.length <= 2 ? fitModel(ctx.model, points, start, free) : fitModel(ctx.model, points, start, free.slice(0, 2));
+  if (!warm && free.length > 2) fit = fitModel(ctx.model, points, fit.parameters, free);
   return { fit, points, pointPeak };
 }
 
@@ -191,6 +221,56 @@ export function seedStart(ctx: SearchContext, peakIndex: number, q: number): Flo
     p[P_ANGLE] = ((beta - dir * Math.atan(sMm / g.detectorDistanceMm)) * 180) / Math.PI;
   }
   return p;
+}
+
+const DEG = Math.PI / 180;
+
+/**
+ * A seed without an iterative fit: with the nominal incidence, tilt 0 and λ0 at the middle of its
+ * tolerance, a flat detector puts first-order λ at p = c + L·tan(β(λ) − β0)/pitch, which is linear
+ * in the centre c and the distance L. Two labelled peaks fix both exactly. The seed is kept when L
+ * and c lie within what the realignment ranges (plus what the incidence, tilt and λ0 ranges can
+ * mimic: a stretch of ±15 % and a shift of L·Δβ/pitch) allow. Returns the parameters and a
+ * plausibility cost (relative stretch and shift beyond the walls), or null.
+ */
+export function linearSeed(ctx: SearchContext, a: number, qa: number, b: number, qb: number, tol: number): { start: Float64Array; cost: number } | null {
+  const m = ctx.model;
+  const p = Float64Array.from(m.nominal);
+  const d = 1e6 / m.grooveDensityPerMm;
+  const alpha = p[P_INCIDENCE] * DEG;
+  const beta0 = p[P_ANGLE] * DEG;
+  const dir = m.wavelengthIncreasesWithPixel ? -1 : 1;
+  const pitchMm = m.pixelPitchUm * 1e-3;
+  const u = (q: number): number => {
+    const sinBeta = Math.sin(alpha) - p[P_DRIVER] / q / d;
+    if (Math.abs(sinBeta) >= 1) return Number.NaN;
+    const off = dir * (Math.asin(sinBeta) - beta0);
+    return Math.abs(off) < Math.PI / 2 - 1e-3 ? Math.tan(off) : Number.NaN;
+  };
+  const ua = u(qa);
+  const ub = u(qb);
+  if (!Number.isFinite(ua) || !Number.isFinite(ub) || ua === ub) return null;
+  const pa = ctx.peaks[a].pixel;
+  const pb = ctx.peaks[b].pixel;
+  const L = ((pb - pa) * pitchMm) / (ub - ua);
+  if (!(L > 0)) return null;
+  const L0 = p[P_DISTANCE];
+  const stretch = Math.abs(L / L0 - 1);
+  const dWall = m.walls[P_DISTANCE] as Wall;
+  const stretchFree = Math.max(dWall.hi / L0 - 1, 1 - dWall.lo / L0) + 0.15;
+  if (stretch > stretchFree) return null;
+  const c = pa - (L * ua) / pitchMm;
+  const cWall = m.walls[P_CENTER] as Wall;
+  const incWall = m.walls[P_INCIDENCE] as Wall;
+  const lambdaA = p[P_DRIVER] / qa;
+  const cosBeta = Math.sqrt(Math.max(1e-9, 1 - (Math.sin(alpha) - lambdaA / d) ** 2));
+  const dAlpha = ((incWall.hi - incWall.lo) / 2) * DEG;
+  const shiftFree = (L * (dAlpha * Math.abs(Math.cos(alpha)) / cosBeta + (tol * lambdaA) / (d * cosBeta))) / pitchMm + 0.02 * m.pixelCount;
+  const beyond = c < cWall.lo ? cWall.lo - c : c > cWall.hi ? c - cWall.hi : 0;
+  if (beyond > shiftFree) return null;
+  p[P_CENTER] = c;
+  p[P_DISTANCE] = L;
+  return { start: p, cost: stretch / stretchFree + beyond / shiftFree };
 }
 
 /** Grow window: a peak joins a labelling when it lies within this fraction of the local line spacing. */
@@ -244,7 +324,7 @@ export function grow(ctx: SearchContext, seedHarmonic: Int32Array, start: ArrayL
       harmonic[c.peak] = c.q;
       order[c.peak] = 1;
     }
-    state = fitLabels(ctx, harmonic, order, params);
+    state = fitLabels(ctx, harmonic, order, params, true);
   }
   // Outlier removal: a labelled peak far off the fitted curve (relative to the fit's own scatter) is dropped.
   for (let round = 0; round < 4; round++) {
@@ -268,12 +348,48 @@ export function grow(ctx: SearchContext, seedHarmonic: Int32Array, start: ArrayL
     if (worst < 0) break;
     harmonic[worst] = 0;
     order[worst] = 0;
-    state = fitLabels(ctx, harmonic, order, state.fit.parameters);
+    state = fitLabels(ctx, harmonic, order, state.fit.parameters, true);
+  }
+  // A badly fitting labelling may hide one wrong member (a false peak beside a weak line, a blend)
+  // that distorts the whole fit, so the residual test above cannot see it: try leaving each labelled
+  // peak out and drop the one whose removal gains more than calling it spurious costs.
+  for (let round = 0; round < 3; round++) {
+    const { fit, points, pointPeak } = state;
+    const free = fit.freeIndices.length;
+    const m = points.length;
+    if (m - 1 - free < 1 || m > LEAVE_OUT_MAX_POINTS || fit.chiSquarePosition / (m - free) < BAD_FIT_REDUCED_CHI2) break;
+    let bestPeak = -1;
+    let bestState: ReturnType<typeof fitLabels> | null = null;
+    for (let k = 0; k < m; k++) {
+      const peak = pointPeak[k];
+      if (peak < 0 || ctx.pins.has(peak)) continue;
+      const h2 = Int32Array.from(harmonic);
+      const o2 = Int8Array.from(order);
+      h2[peak] = 0;
+      o2[peak] = 0;
+      const trial = fitLabels(ctx, h2, o2, fit.parameters, true);
+      if (!bestState || trial.fit.chiSquarePosition + trial.fit.chiSquarePrior < bestState.fit.chiSquarePosition + bestState.fit.chiSquarePrior) {
+        bestState = trial;
+        bestPeak = peak;
+      }
+    }
+    if (!bestState) break;
+    const s2 = Math.max(1, bestState.fit.chiSquarePosition / Math.max(1, m - 1 - free));
+    const gain = (fit.chiSquarePosition + fit.chiSquarePrior - bestState.fit.chiSquarePosition - bestState.fit.chiSquarePrior) / s2;
+    if (!(gain > spuriousCost(ctx.model.pixelCount))) break;
+    harmonic[bestPeak] = 0;
+    order[bestPeak] = 0;
+    state = bestState;
   }
   return { harmonic, order, fit: state.fit, points: state.points, pointPeak: state.pointPeak };
 }
 
-/** Refit a labelling including second-order labels. */
-export function refit(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>): { fit: ModelFit; points: ModelPoint[]; pointPeak: number[] } {
-  return fitLabels(ctx, harmonic, order, start);
+/** Reduced χ² above which grow() looks for one wrong member by leaving peaks out. */
+const BAD_FIT_REDUCED_CHI2 = 9;
+/** Leave-one-out is for short labellings; in long ones the median-based test above sees a wrong member. */
+const LEAVE_OUT_MAX_POINTS = 16;
+
+/** Refit a labelling including second-order labels (`warm`: the start is a fit of nearly the same labelling). */
+export function refit(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>, warm = false): { fit: ModelFit; points: ModelPoint[]; pointPeak: number[] } {
+  return fitLabels(ctx, harmonic, order, start, warm);
 }

@@ -56,6 +56,25 @@ function flatten(covariance: number[][], n: number): Float64Array {
 
 /** Wavelength and its 1-σ band at each pixel (both models). Fast: one pass, no allocation per pixel. */
 export function evaluateCalibration(cal: Calibration, pixels: ArrayLike<number>): EvaluatedCalibration {
+  return evaluate(cal, pixels, undefined);
+}
+
+/** {@link evaluateCalibration} plus the local dispersion dλ/dp of {@link calibrationDispersionNmPerPixel}. */
+export interface EvaluatedCalibrationAxes extends EvaluatedCalibration {
+  dispersionNmPerPixel: Float64Array;
+}
+
+/**
+ * Wavelength, its 1-σ band and the dispersion at each pixel in one pass: the grating model's
+ * analytic Jacobian already holds dλ/dp, so the trigonometry is done once per pixel, not twice.
+ * Equal, value for value, to {@link evaluateCalibration} and {@link calibrationDispersionNmPerPixel}.
+ */
+export function evaluateCalibrationAxes(cal: Calibration, pixels: ArrayLike<number>): EvaluatedCalibrationAxes {
+  const dispersionNmPerPixel = new Float64Array(pixels.length);
+  return { ...evaluate(cal, pixels, dispersionNmPerPixel), dispersionNmPerPixel };
+}
+
+function evaluate(cal: Calibration, pixels: ArrayLike<number>, dispersion: Float64Array | undefined): EvaluatedCalibration {
   const n = pixels.length;
   const wavelengthNm = new Float64Array(n);
   const wavelengthSigmaNm = new Float64Array(n);
@@ -67,6 +86,8 @@ export function evaluateCalibration(cal: Calibration, pixels: ArrayLike<number>)
     const cov = flatten(poly.covariance, p);
     const [lo, hi] = poly.domainPx;
     const t = new Float64Array(p);
+    const derivative = dispersion ? chebyshevDerivative(c) : [];
+    const du = 2 / (hi - lo);
     for (let i = 0; i < n; i++) {
       const u = (2 * pixels[i] - (lo + hi)) / (hi - lo);
       t[0] = 1;
@@ -82,6 +103,7 @@ export function evaluateCalibration(cal: Calibration, pixels: ArrayLike<number>)
       }
       wavelengthNm[i] = lambda;
       wavelengthSigmaNm[i] = Math.sqrt(Math.max(0, v) + (lambda * scale) ** 2);
+      if (dispersion) dispersion[i] = chebyshevValue(derivative, u) * du;
     }
     return { wavelengthNm, wavelengthSigmaNm };
   }
@@ -89,12 +111,12 @@ export function evaluateCalibration(cal: Calibration, pixels: ArrayLike<number>)
   const names = grating.parameterNames;
   const k = names.length;
   const cov = flatten(grating.covariance, k);
-  const g = withParameters(grating.geometry, names, grating.parameters);
+  const g = prepareGrating(withParameters(grating.geometry, names, grating.parameters));
   const jac = new Float64Array(k);
   const all = new Float64Array(GRATING_PARAMETERS.length);
-  const index = names.map((name) => GRATING_PARAMETERS.indexOf(name as GratingParameter));
+  const index = Int32Array.from(names, (name) => GRATING_PARAMETERS.indexOf(name as GratingParameter));
   for (let i = 0; i < n; i++) {
-    const lambda = gratingWavelengthAndJacobian(g, pixels[i], all);
+    const lambda = preparedWavelengthAndJacobian(g, pixels[i], all);
     for (let j = 0; j < k; j++) jac[j] = all[index[j]];
     let v = 0;
     for (let a = 0; a < k; a++) {
@@ -104,40 +126,83 @@ export function evaluateCalibration(cal: Calibration, pixels: ArrayLike<number>)
     }
     wavelengthNm[i] = lambda;
     wavelengthSigmaNm[i] = Math.sqrt(Math.max(0, v) + (lambda * scale) ** 2);
+    // dλ/dp = −∂λ/∂c: a pixel step is a detector-centre step with the opposite sign.
+    if (dispersion) dispersion[i] = -all[4];
   }
   return { wavelengthNm, wavelengthSigmaNm };
 }
 
 const DEG = Math.PI / 180;
 
+/** The per-geometry constants of {@link gratingWavelengthAndJacobian}, computed once per map, not per pixel. */
+export interface PreparedGrating {
+  dNm: number;
+  sigma: number;
+  pitchMm: number;
+  centerPixel: number;
+  distanceMm: number;
+  cosTilt: number;
+  sinTilt: number;
+  sinAlpha: number;
+  cosAlpha: number;
+  sinBeta0: number;
+  cosBeta0: number;
+}
+
+export function prepareGrating(g: GratingGeometry): PreparedGrating {
+  const tilt = g.detectorTiltDeg * DEG;
+  const alpha = g.incidenceAngleDeg * DEG;
+  const beta0 = g.detectorAngleDeg * DEG;
+  return {
+    dNm: 1e6 / g.grooveDensityPerMm,
+    sigma: g.wavelengthIncreasesWithPixel ? -1 : 1,
+    pitchMm: g.pixelPitchUm * 1e-3,
+    centerPixel: g.detectorCenterPixel,
+    distanceMm: g.detectorDistanceMm,
+    cosTilt: Math.cos(tilt),
+    sinTilt: Math.sin(tilt),
+    sinAlpha: Math.sin(alpha),
+    cosAlpha: Math.cos(alpha),
+    sinBeta0: Math.sin(beta0),
+    cosBeta0: Math.cos(beta0),
+  };
+}
+
 /**
  * First-order λ(p) of grating.ts's model and its analytic partial derivatives with respect to
  * every GRATING_PARAMETERS entry (per degree, per mm, per pixel), written into `jacobian` in that
  * order. Same formula as pixelToWavelengthNm (tested equal); analytic so that evaluating 2048
- * pixels costs one set of trig calls per pixel. With s = (p − c)·pitch, N = s·cos θ,
+ * pixels needs no finite differences. With s = (p − c)·pitch, N = s·cos θ,
  * D = L + s·sin θ, ω = atan2(N, D), β = β0 + σω:
  *   ∂ω/∂L = −N/(N² + D²), ∂ω/∂θ = −s(L sin θ + s)/(N² + D²), ∂ω/∂s = L cos θ/(N² + D²).
  */
 export function gratingWavelengthAndJacobian(g: GratingGeometry, pixel: number, jacobian: Float64Array): number {
-  const d = 1e6 / g.grooveDensityPerMm;
-  const sigma = g.wavelengthIncreasesWithPixel ? -1 : 1;
-  const pitchMm = g.pixelPitchUm * 1e-3;
-  const sMm = (pixel - g.detectorCenterPixel) * pitchMm;
-  const tilt = g.detectorTiltDeg * DEG;
-  const cosT = Math.cos(tilt);
-  const sinT = Math.sin(tilt);
+  return preparedWavelengthAndJacobian(prepareGrating(g), pixel, jacobian);
+}
+
+/**
+ * {@link gratingWavelengthAndJacobian} on prepared constants, without any trigonometric call:
+ * cos ω = D/r and sin ω = N/r with r = √(N² + D²) (the angle atan2 returns), and sin β, cos β
+ * follow from the angle-addition formulas, so a pixel costs one square root.
+ */
+export function preparedWavelengthAndJacobian(pg: PreparedGrating, pixel: number, jacobian: Float64Array): number {
+  const { dNm: d, sigma, pitchMm, distanceMm, cosTilt: cosT, sinTilt: sinT } = pg;
+  const sMm = (pixel - pg.centerPixel) * pitchMm;
   const num = sMm * cosT;
-  const den = g.detectorDistanceMm + sMm * sinT;
+  const den = distanceMm + sMm * sinT;
   const r2 = num * num + den * den;
-  const beta = g.detectorAngleDeg * DEG + sigma * Math.atan2(num, den);
-  const alpha = g.incidenceAngleDeg * DEG;
-  const lambda = d * (Math.sin(alpha) - Math.sin(beta));
-  const dLdBeta = -d * Math.cos(beta);
-  jacobian[0] = d * Math.cos(alpha) * DEG;
+  const r = Math.sqrt(r2);
+  const cosW = den / r;
+  const sinW = num / r;
+  const sinBeta = pg.sinBeta0 * cosW + sigma * pg.cosBeta0 * sinW;
+  const cosBeta = pg.cosBeta0 * cosW - sigma * pg.sinBeta0 * sinW;
+  const lambda = d * (pg.sinAlpha - sinBeta);
+  const dLdBeta = -d * cosBeta;
+  jacobian[0] = d * pg.cosAlpha * DEG;
   jacobian[1] = dLdBeta * sigma * (-num / r2);
   jacobian[2] = dLdBeta * DEG;
-  jacobian[3] = dLdBeta * sigma * ((-sMm * (g.detectorDistanceMm * sinT + sMm)) / r2) * DEG;
-  jacobian[4] = dLdBeta * sigma * ((g.detectorDistanceMm * cosT) / r2) * -pitchMm;
+  jacobian[3] = dLdBeta * sigma * ((-sMm * (distanceMm * sinT + sMm)) / r2) * DEG;
+  jacobian[4] = dLdBeta * sigma * ((distanceMm * cosT) / r2) * -pitchMm;
   return lambda > 0 ? lambda : Number.NaN;
 }
 
@@ -154,11 +219,11 @@ export function calibrationDispersionNmPerPixel(cal: Calibration, pixels: ArrayL
     return out;
   }
   const grating = requireGrating(cal);
-  const g = withParameters(grating.geometry, grating.parameterNames, grating.parameters);
+  const g = prepareGrating(withParameters(grating.geometry, grating.parameterNames, grating.parameters));
   // dλ/dp = −∂λ/∂c: a pixel step is a detector-centre step with the opposite sign.
   const jac = new Float64Array(GRATING_PARAMETERS.length);
   for (let i = 0; i < n; i++) {
-    gratingWavelengthAndJacobian(g, pixels[i], jac);
+    preparedWavelengthAndJacobian(g, pixels[i], jac);
     out[i] = -jac[4];
   }
   return out;

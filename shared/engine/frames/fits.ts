@@ -131,14 +131,16 @@ export function decodeFits(bytes: Uint8Array, page: number, limits: ResolvedFram
   const bzero = numberCard(cards, 'BZERO', 0);
   const bscale = numberCard(cards, 'BSCALE', 1);
   const n = width * height;
-  const data = new Float32Array(n);
+  let data: Float32Array;
   let sampleFormat: Frame['sampleFormat'] = kind.format;
   let fullScale = kind.format === 'float' ? Infinity : kind.bits === 8 ? 255 : 2 ** (kind.bits - 1) - 1;
   if (kind.format === 'float' || (bzero === 0 && bscale === 1)) {
-    new SampleConverter(kind, false).convert(bytes, start, n, data, 0);
+    // FITS is big-endian: swapped in the converter's scratch, then one native pass to Float32.
+    data = new SampleConverter(kind, false).toFloat32(bytes, start, n);
     if (kind.format === 'float' && (bzero !== 0 || bscale !== 1)) for (let i = 0; i < n; i++) data[i] = bzero + bscale * data[i];
   } else {
     // Scale in double precision straight from the stored integers: one rounding, to Float32.
+    data = new Float32Array(n);
     const dv = new DataView(bytes.buffer, bytes.byteOffset + start, planeBytes);
     const read = kind.bits === 8 ? (i: number) => dv.getUint8(i) : kind.bits === 16 ? (i: number) => dv.getInt16(i * 2) : (i: number) => dv.getInt32(i * 4);
     for (let i = 0; i < n; i++) data[i] = bzero + bscale * read(i);

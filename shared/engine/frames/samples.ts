@@ -69,11 +69,28 @@ export class SampleConverter {
    * aligned; otherwise the run is copied (and swapped) into the scratch buffer first.
    */
   convert(src: Uint8Array, srcByte: number, count: number, out: Float32Array, outIndex: number): void {
+    out.set(this.nativeView(src, srcByte, count), outIndex);
+  }
+
+  /**
+   * A new Float32Array of `count` samples from `src[srcByte]`, built by the typed-array
+   * constructor from a view in host order. Unlike allocating a zeroed array and `set`-ting into
+   * it, the constructor takes uninitialised memory and converts in one native pass: on a large
+   * frame that halves the time and avoids most fresh-page faults. Never writes to `src`.
+   */
+  toFloat32(src: Uint8Array, srcByte: number, count: number): Float32Array {
+    return new Float32Array(this.nativeView(src, srcByte, count));
+  }
+
+  /**
+   * The run as a typed array in host byte order: a view of `src` when the order matches and the
+   * offset is aligned; otherwise a copy (swapped) in the scratch buffer, valid until the next call.
+   */
+  private nativeView(src: Uint8Array, srcByte: number, count: number): IntView {
     const n = this.bytes;
     const absolute = src.byteOffset + srcByte;
     if (n === 1 || (this.littleEndian === HOST_LITTLE_ENDIAN && absolute % n === 0)) {
-      out.set(viewOf(this.kind, src.buffer, absolute, count), outIndex);
-      return;
+      return viewOf(this.kind, src.buffer, absolute, count);
     }
     const length = count * n;
     if (this.scratch.length < length) this.scratch = new Uint8Array((length + 7) & ~7);
@@ -107,6 +124,6 @@ export class SampleConverter {
         }
       }
     }
-    out.set(viewOf(this.kind, s.buffer, 0, count), outIndex);
+    return viewOf(this.kind, s.buffer, 0, count);
   }
 }

@@ -67,6 +67,19 @@ function sampleKindOf(bits: number, sampleFormat: number): SampleKind {
   );
 }
 
+/**
+ * Whether the `down` strips lie back to back in the file, each holding exactly its share, so
+ * that together they are the frame's `sampleBytes` bytes from the first offset on.
+ */
+function contiguousStrips(offsets: ArrayLike<number>, counts: ArrayLike<number>, down: number, sampleBytes: number): boolean {
+  let total = 0;
+  for (let i = 0; i < down; i++) {
+    if (offsets[i] !== offsets[0] + total) return false;
+    total += counts[i];
+  }
+  return total === sampleBytes;
+}
+
 /** Decodes one page of a classic TIFF or BigTIFF into a Frame. */
 export async function decodeTiff(bytes: Uint8Array, page: number, limits: ResolvedFrameLimits): Promise<Frame> {
   const header = readTiffHeader(bytes);
@@ -134,6 +147,29 @@ export async function decodeTiff(bytes: Uint8Array, page: number, limits: Resolv
     ? await getDecoder(compression, { tileWidth: blockWidth, tileHeight: blockHeight, predictor: 1, bitsPerSample: [bits], planarConfiguration: 1 })
     : undefined;
   const fileOrder = new SampleConverter(kind, header.littleEndian);
+  const takenAt = dateTimeToIso(fd.text(TAG.DateTime));
+  const frameOf = (data: Float32Array): Frame => ({
+    width,
+    height,
+    data,
+    bitsPerSample: frameBitsOf(kind),
+    sampleFormat: kind.format,
+    fullScale: fullScaleOf(kind),
+    format: header.bigTiff ? 'bigtiff' : 'tiff',
+    pageCount,
+    page,
+    ...(takenAt ? { takenAt } : {}),
+  });
+
+  // The fast path, the usual camera file: uncompressed full-width strips lying one after the
+  // other in the file are one run of samples, converted in a single native pass (a view over
+  // the file's bytes, swapped first when the byte order differs from the host's).
+  const sampleBytes = width * height * bytesPerSample;
+  // A cut file goes the strip-by-strip way, which names the strip that runs past the end.
+  if (compression === NONE && predictor === 1 && !tiled && contiguousStrips(offsets, counts, down, sampleBytes) && offsets[0] + sampleBytes <= bytes.length) {
+    return frameOf(fileOrder.toFloat32(bytes, offsets[0], width * height));
+  }
+
   const bigEndian = new SampleConverter(kind, false);
   const scratch = predictor === 3 ? new Uint8Array(blockWidth * bytesPerSample) : new Uint8Array(0);
   const data = new Float32Array(width * height);
@@ -189,17 +225,5 @@ export async function decodeTiff(bytes: Uint8Array, page: number, limits: Resolv
     }
   }
 
-  const takenAt = dateTimeToIso(fd.text(TAG.DateTime));
-  return {
-    width,
-    height,
-    data,
-    bitsPerSample: frameBitsOf(kind),
-    sampleFormat: kind.format,
-    fullScale: fullScaleOf(kind),
-    format: header.bigTiff ? 'bigtiff' : 'tiff',
-    pageCount,
-    page,
-    ...(takenAt ? { takenAt } : {}),
-  };
+  return frameOf(data);
 }

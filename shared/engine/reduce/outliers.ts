@@ -1,5 +1,5 @@
 import { medianInPlace } from './robust.ts';
-import type { Strip } from './strip.ts';
+import { type RowSource, rowIndex } from './strip.ts';
 
 /** Median of up to four finite values in `buf[0..n)`; NaN when n is 0. */
 function smallMedian(buf: Float64Array, n: number): number {
@@ -17,11 +17,8 @@ function smallMedian(buf: Float64Array, n: number): number {
   return n % 2 === 1 ? buf[n >> 1] : 0.5 * (buf[(n >> 1) - 1] + buf[n >> 1]);
 }
 
-/** Settings of {@link rejectOutliers}. */
+/** Settings of {@link RowCleaner}. */
 export interface OutlierSettings {
-  /** Strip rows [rowStart, rowEnd) to clean; the rows around them serve only as neighbours. */
-  rowStart: number;
-  rowEnd: number;
   gain: number;
   /** Noise floor variance per pixel (read noise and background shot noise), counts². */
   floorVariance: number;
@@ -30,10 +27,35 @@ export interface OutlierSettings {
   sigmas: number;
   /** When false only NaN pixels are replaced. */
   rejectHot: boolean;
+  /** Raw value at or above which a pixel counts as saturated. */
+  saturationLevel: number;
 }
 
 /**
- * Replaces NaN pixels and hot/cosmic pixels in place and returns how many were replaced.
+ * First screen, three predictable comparisons per pixel; writes the pixels that pass it (the
+ * possible outliers, and every NaN) to `candidates` and returns how many. An outlier stands more
+ * than k·σ_floor (`screen`) above its reference (g·level ≥ 0), and the reference is at least the
+ * median of the 4 spatial neighbours, hence at least their second smallest. When three of the
+ * neighbours are ≥ v − k·σ_floor, so is the second smallest, and the pixel is no outlier. NaN
+ * anywhere fails a comparison and goes on to the exact tests.
+ */
+function screenRow(cur: Float32Array, a: Float32Array, b: Float32Array, c: Float32Array, screen: number, candidates: Int32Array): number {
+  let n = 0;
+  const L = cur.length;
+  for (let p = 0; p < L; p++) {
+    const t = cur[p] - screen;
+    if (t <= b[p] && t <= c[p] && t <= a[p]) continue;
+    candidates[n++] = p;
+  }
+  return n;
+}
+
+/** Rows kept around the row being cleaned: itself and two spatial neighbours each side. */
+const WINDOW = 5;
+
+/**
+ * Replaces NaN pixels and hot/cosmic pixels, one spatial row at a time, reading the source
+ * (never writing it) and writing the cleaned row into {@link RowCleaner.values}.
  *
  * A pixel is an outlier when it stands more than `sigmas` noise sigmas AND more than its own
  * reference level above both the median of its 4 spatial neighbours (rows ±1, ±2) and the median
@@ -42,87 +64,208 @@ export interface OutlierSettings {
  * the two medians follows the line and the line survives; a hit of 1-2 pixels has background in
  * both medians. The replacement is the spatial median, which keeps the spectral line profile of
  * the neighbouring rows. A replaced saturated pixel no longer flags saturation.
+ *
+ * Neighbours are always the source's original values, so the result does not depend on the
+ * order rows are cleaned in. Dark-subtracted rows are prepared once each in a five-row ring.
  */
-export function rejectOutliers(strip: Strip, settings: OutlierSettings): number {
-  const { rows, spectralLength: L } = strip;
-  const source = strip.values.slice();
-  const out = strip.values;
-  const buf = new Float64Array(4);
-  const { gain, floorVariance, pedestal } = settings;
-  const k2 = settings.sigmas * settings.sigmas;
-  let replaced = 0;
-  for (let r = settings.rowStart; r < settings.rowEnd; r++) {
-    const interior = r >= 2 && r + 2 < rows;
-    const row = r * L;
-    for (let p = 0; p < L; p++) {
-      const i = row + p;
-      const v = source[i];
-      const isNan = v !== v;
-      if (!isNan && interior) {
-        if (!settings.rejectHot) continue;
-        // Fast exit, valid because the reference is at least the smallest spatial neighbour and
-        // the threshold grows with the reference: not an outlier even against that minimum.
-        // (A NaN neighbour makes every comparison false and falls through to the full test.)
-        let mn = source[i - 2 * L];
-        const b = source[i - L];
-        const c = source[i + L];
-        const d = source[i + 2 * L];
-        if (b < mn) mn = b;
-        if (c < mn) mn = c;
-        if (d < mn) mn = d;
-        const excess = v - mn;
-        const level = mn - pedestal > 0 ? mn - pedestal : 0;
-        if (excess <= level || excess * excess <= k2 * (gain * level + floorVariance)) continue;
-      } else if (!isNan && !settings.rejectHot) {
-        continue;
+export class RowCleaner {
+  /** The last cleaned row (dark-subtracted, outliers replaced). */
+  readonly values: Float32Array;
+  /** 1 where the last cleaned row's raw pixel reached the saturation level and was kept. */
+  readonly saturated: Uint8Array;
+  /** Whether {@link saturated} holds any 1. */
+  anySaturated = false;
+  /** The loaded row's dark-subtracted values, its raw values, and its neighbours at rows s−2, s−1, s+1, s+2 (undefined past the frame edge). */
+  cur: Float32Array = new Float32Array(0);
+  rawRow: Float32Array = new Float32Array(0);
+  neighbours: (Float32Array | undefined)[] = [undefined, undefined, undefined, undefined];
+  /** Whether the last {@link resolve} replaced its pixel, and whether as a hot pixel (which then no longer flags saturation; a replaced NaN keeps its raw flag). */
+  wasReplaced = false;
+  wasHot = false;
+  /** k·σ_floor, shrunk by 1e-9 for the rounding of the square root: the first screen's threshold. */
+  readonly screenThreshold: number;
+  private interior = false;
+  private readonly ringRows = new Int32Array(WINDOW).fill(-1);
+  private readonly ring: Float32Array[] = [];
+  private readonly buf = new Float64Array(4);
+  private readonly candidates: Int32Array;
+
+  constructor(
+    private readonly source: RowSource,
+    private readonly settings: OutlierSettings,
+  ) {
+    const L = source.spectralLength;
+    this.values = new Float32Array(L);
+    this.saturated = new Uint8Array(L);
+    this.candidates = new Int32Array(L);
+    this.screenThreshold = settings.sigmas * Math.sqrt(settings.floorVariance) * (1 - 1e-9);
+    for (let k = 0; k < WINDOW; k++) this.ring.push(source.dark ? new Float32Array(L) : new Float32Array(0));
+  }
+
+  /** The dark-subtracted values of spatial row s (a view of the frame when there is no dark). */
+  private row(s: number): Float32Array {
+    const { source } = this;
+    const L = source.spectralLength;
+    const i = rowIndex(source, s);
+    if (!source.dark) return source.raw.subarray(i, i + L);
+    const slot = s % WINDOW;
+    const out = this.ring[slot];
+    if (this.ringRows[slot] !== s) {
+      const { raw, dark } = source;
+      for (let p = 0; p < L; p++) out[p] = raw[i + p] - dark[i + p];
+      this.ringRows[slot] = s;
+    }
+    return out;
+  }
+
+  /**
+   * Loads spatial row s and its neighbours into {@link cur}, {@link rawRow} and
+   * {@link neighbours}. Returns true when the caller may run the first screen itself (all four
+   * neighbours exist and hot pixels are rejected); candidates then go to {@link resolve}.
+   */
+  load(s: number): boolean {
+    const { source } = this;
+    const S = source.spatialLength;
+    const i = rowIndex(source, s);
+    this.cur = this.row(s);
+    this.rawRow = source.dark ? source.raw.subarray(i, i + source.spectralLength) : this.cur;
+    let all = true;
+    for (let k = 0; k < 4; k++) {
+      const rr = s + (k < 2 ? k - 2 : k - 1);
+      const row = rr >= 0 && rr < S ? this.row(rr) : undefined;
+      this.neighbours[k] = row;
+      if (row === undefined) all = false;
+    }
+    this.interior = all;
+    return all && this.settings.rejectHot;
+  }
+
+  /** Cleans spatial row s into {@link values} and {@link saturated}; returns how many pixels were replaced. */
+  clean(s: number): number {
+    const { settings, values: out, saturated: sat } = this;
+    const screened = this.load(s);
+    const { cur, rawRow } = this;
+    const L = cur.length;
+    out.set(cur);
+    if (this.anySaturated) sat.fill(0);
+    this.anySaturated = false;
+    const level = settings.saturationLevel;
+    if (level !== Infinity) {
+      for (let p = 0; p < L; p++) {
+        if (rawRow[p] >= level) {
+          sat[p] = 1;
+          this.anySaturated = true;
+        }
       }
-      let n = 0;
-      for (let dr = -2; dr <= 2; dr++) {
-        if (dr === 0) continue;
-        const rr = r + dr;
-        if (rr < 0 || rr >= rows) continue;
-        const u = source[rr * L + p];
-        if (u === u) buf[n++] = u;
-      }
-      const refSpatial = smallMedian(buf, n);
-      let m = 0;
-      for (let dp = -2; dp <= 2; dp++) {
-        if (dp === 0) continue;
-        const pp = p + dp;
-        if (pp < 0 || pp >= L) continue;
-        const u = source[row + pp];
-        if (u === u) buf[m++] = u;
-      }
-      const refSpectral = smallMedian(buf, m);
-      if (isNan) {
-        out[i] = refSpatial === refSpatial ? refSpatial : refSpectral === refSpectral ? refSpectral : pedestal;
-        replaced++;
-        continue;
-      }
-      const ref = Math.max(refSpatial === refSpatial ? refSpatial : -Infinity, refSpectral === refSpectral ? refSpectral : -Infinity);
-      if (!Number.isFinite(ref)) continue;
-      const level = Math.max(ref - pedestal, 0);
-      const excess = v - ref;
-      if (excess > level && excess * excess > k2 * (gain * level + floorVariance)) {
-        out[i] = refSpatial === refSpatial ? refSpatial : ref;
-        strip.saturated[i] = 0;
+    }
+    const candidates = this.candidates;
+    let n = 0;
+    if (screened) {
+      const [a, b, c] = this.neighbours as Float32Array[];
+      n = screenRow(cur, a, b, c, this.screenThreshold, candidates);
+    } else if (!settings.rejectHot) {
+      for (let p = 0; p < L; p++) if (cur[p] !== cur[p]) candidates[n++] = p;
+    } else {
+      for (let p = 0; p < L; p++) candidates[n++] = p;
+    }
+    let replaced = 0;
+    for (let k = 0; k < n; k++) {
+      const p = candidates[k];
+      const v = this.resolve(p);
+      if (this.wasReplaced) {
+        out[p] = v;
+        if (this.wasHot) sat[p] = 0;
         replaced++;
       }
     }
+    return replaced;
   }
-  return replaced;
+
+  /**
+   * The cleaned value (Float32) of pixel p of the loaded row, a pixel the first screen did not
+   * clear; sets {@link wasReplaced}. Runs the exact tests.
+   */
+  resolve(p: number): number {
+    const { buf, neighbours, settings, cur } = this;
+    const L = cur.length;
+    const v = cur[p];
+    this.wasReplaced = false;
+    this.wasHot = false;
+    const { gain, floorVariance, pedestal } = settings;
+    const k2 = settings.sigmas * settings.sigmas;
+    if (v === v && this.interior) {
+      if (!settings.rejectHot) return v;
+      // Second screen, exact: not an outlier even against the smallest spatial neighbour (the
+      // reference is at least that, and the threshold grows with the reference). A NaN
+      // neighbour makes every comparison false and falls through to the full test.
+      const [a, b, c, d] = neighbours as Float32Array[];
+      let mn = a[p];
+      const vb = b[p];
+      const vc = c[p];
+      const vd = d[p];
+      if (vb < mn) mn = vb;
+      if (vc < mn) mn = vc;
+      if (vd < mn) mn = vd;
+      const excess = v - mn;
+      const lv = mn - pedestal > 0 ? mn - pedestal : 0;
+      if (excess <= lv || excess * excess <= k2 * (gain * lv + floorVariance)) return v;
+    } else if (v === v && !settings.rejectHot) {
+      return v;
+    }
+    let n = 0;
+    for (let k = 0; k < 4; k++) {
+      const row = neighbours[k];
+      if (row === undefined) continue;
+      const u = row[p];
+      if (u === u) buf[n++] = u;
+    }
+    const refSpatial = smallMedian(buf, n);
+    let m = 0;
+    for (let dp = -2; dp <= 2; dp++) {
+      if (dp === 0) continue;
+      const pp = p + dp;
+      if (pp < 0 || pp >= L) continue;
+      const u = cur[pp];
+      if (u === u) buf[m++] = u;
+    }
+    const refSpectral = smallMedian(buf, m);
+    if (v !== v) {
+      this.wasReplaced = true;
+      return Math.fround(refSpatial === refSpatial ? refSpatial : refSpectral === refSpectral ? refSpectral : pedestal);
+    }
+    const ref = Math.max(refSpatial === refSpatial ? refSpatial : -Infinity, refSpectral === refSpectral ? refSpectral : -Infinity);
+    if (!Number.isFinite(ref)) return v;
+    const level = Math.max(ref - pedestal, 0);
+    const excess = v - ref;
+    if (excess > level && excess * excess > k2 * (gain * level + floorVariance)) {
+      this.wasReplaced = true;
+      this.wasHot = true;
+      return Math.fround(refSpatial === refSpatial ? refSpatial : ref);
+    }
+    return v;
+  }
 }
 
-/** Median of a strided subsample of the finite strip values in rows [rowStart, rowEnd). */
-export function stripPedestal(strip: Strip, rowStart: number, rowEnd: number): number {
-  const L = strip.spectralLength;
-  const total = (rowEnd - rowStart) * L;
+/** Median of a strided subsample of the finite dark-subtracted values in spatial rows [start, end). */
+export function bandPedestal(source: RowSource, start: number, end: number): number {
+  const L = source.spectralLength;
+  const total = (end - start) * L;
   const step = Math.max(1, Math.floor(total / 20000));
   const scratch = new Float64Array(Math.ceil(total / step));
+  const { raw, dark } = source;
   let n = 0;
-  for (let i = rowStart * L; i < rowEnd * L; i += step) {
-    const v = strip.values[i];
+  // Every step-th pixel of the band's flat (row, pixel) order, walked without a division.
+  let row = start;
+  let p = 0;
+  for (let k = 0; k < total; k += step) {
+    const i = rowIndex(source, row) + p;
+    const v = dark ? Math.fround(raw[i] - dark[i]) : raw[i];
     if (v === v) scratch[n++] = v;
+    p += step;
+    while (p >= L) {
+      p -= L;
+      row++;
+    }
   }
   return n > 0 ? medianInPlace(scratch, n) : 0;
 }

@@ -1,28 +1,23 @@
 import { EngineError } from '../errors.ts';
 import type { Frame, Lineout, SpatialBand } from '../types.ts';
 import { autoBackgroundBands, findSignalBand } from './bands.ts';
-import { noiseFloorFromRows } from './noise.ts';
+import { noiseFloorFromRows, type SourcedBand } from './noise.ts';
 import { type ReduceOptions, resolveReduceOptions } from './options.ts';
-import { rejectOutliers, stripPedestal } from './outliers.ts';
-import { type AxisGeometry, type Strip, axisGeometry, extractStrip, frameCensus } from './strip.ts';
+import { RowCleaner, bandPedestal } from './outliers.ts';
+import { type AxisGeometry, axisGeometry, frameCensus, rowSource } from './strip.ts';
 import { sumBand } from './sum-band.ts';
-
 
 /** Rows read beyond each band edge so that edge pixels have spatial neighbours for rejection. */
 const MARGIN_ROWS = 2;
 
-interface BandStrip {
-  strip: Strip;
-  /** Strip rows [rowStart, rowEnd) are the band itself; the rest is margin. */
-  rowStart: number;
-  rowEnd: number;
+/** The band's rows and their neighbours, readable spectral-contiguously (a view for axis 'x'). */
+function sourcedBand(frame: Frame, dark: Frame | undefined, geometry: AxisGeometry, band: SpatialBand): SourcedBand {
+  return { source: rowSource(frame, dark, geometry, band.start - MARGIN_ROWS, band.end + MARGIN_ROWS), band };
 }
 
-function bandStrip(frame: Frame, dark: Frame | undefined, geometry: AxisGeometry, band: SpatialBand, saturationLevel: number): BandStrip {
-  const start = Math.max(0, band.start - MARGIN_ROWS);
-  const end = Math.min(geometry.spatialLength, band.end + MARGIN_ROWS);
-  const strip = extractStrip(frame, dark, geometry, start, end, saturationLevel);
-  return { strip, rowStart: band.start - start, rowEnd: band.end - start };
+/** sum[p] += row[p]: a function per row so V8 optimises it whole (see strip.ts sumAndMin). */
+function addInto(sum: Float64Array, row: Float32Array): void {
+  for (let p = 0; p < sum.length; p++) sum[p] += row[p];
 }
 
 /** Centred boxcar of odd width `size` (shrunk at the ends); returns the input when size is 1. */
@@ -85,12 +80,12 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
     }
   }
 
-  const sig = bandStrip(frame, opts.dark, geometry, signal, opts.saturationLevel);
-  const bgs = background.map((band) => bandStrip(frame, opts.dark, geometry, band, opts.saturationLevel));
+  const sig = sourcedBand(frame, opts.dark, geometry, signal);
+  const bgs = background.map((band) => sourcedBand(frame, opts.dark, geometry, band));
   const bgRowCount = background.reduce((n, band) => n + band.end - band.start, 0);
 
   // Noise floor first (MAD is robust to the hits that rejection will remove).
-  const bgPedestal = bgs.length > 0 ? stripPedestal(bgs[0].strip, bgs[0].rowStart, bgs[0].rowEnd) : 0;
+  const bgPedestal = bgs.length > 0 ? bandPedestal(bgs[0].source, bgs[0].band.start, bgs[0].band.end) : 0;
   let floorSigma: number;
   if (opts.readNoise !== undefined) {
     floorSigma = Math.sqrt(opts.readNoise ** 2 + opts.gain * Math.max(bgPedestal, 0));
@@ -102,28 +97,26 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
     if (!Number.isFinite(floorSigma)) floorSigma = 0;
   }
   const floorVarScalar = floorSigma * floorSigma;
-
-  let rejected = 0;
-  for (const s of [...bgs, sig]) {
-    rejected += rejectOutliers(s.strip, {
-      rowStart: s.rowStart,
-      rowEnd: s.rowEnd,
+  const cleanerFor = (s: SourcedBand, pedestal: number) =>
+    new RowCleaner(s.source, {
       gain: opts.gain,
       floorVariance: floorVarScalar,
-      pedestal: s === sig ? stripPedestal(s.strip, s.rowStart, s.rowEnd) : bgPedestal,
+      pedestal,
       sigmas: opts.outlierSigma,
       rejectHot: opts.rejectOutliers,
+      saturationLevel: opts.saturationLevel,
     });
-  }
 
-  // Background per spectral pixel: mean of the (cleaned) background rows.
+  // Background per spectral pixel: mean of the cleaned background rows, cleaned row by row.
+  let rejected = 0;
   let bg: Float64Array = new Float64Array(L);
   if (bgRowCount > 0) {
     for (const s of bgs) {
-      const v = s.strip.values;
-      for (let r = s.rowStart; r < s.rowEnd; r++) {
-        const base = r * L;
-        for (let p = 0; p < L; p++) bg[p] += v[base + p];
+      const cleaner = cleanerFor(s, bgPedestal);
+      const v = cleaner.values;
+      for (let row = s.band.start; row < s.band.end; row++) {
+        rejected += cleaner.clean(row);
+        addInto(bg, v);
       }
     }
     for (let p = 0; p < L; p++) bg[p] /= bgRowCount;
@@ -137,15 +130,16 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
   }
 
   const summed = sumBand({
-    strip: sig.strip,
-    rowOffset: sig.rowStart,
+    cleaner: cleanerFor(sig, bandPedestal(sig.source, signal.start, signal.end)),
     signal,
     lineShape: opts.lineShape,
     background: bg,
     backgroundVariance: bgVariance,
     floorVariance,
     gain: opts.gain,
+    saturationLevel: opts.saturationLevel,
   });
+  rejected += summed.rejected;
   return {
     counts: summed.counts,
     variance: summed.variance,

@@ -17,56 +17,100 @@ export function axisGeometry(frame: Frame, spectralAxis: 'x' | 'y'): AxisGeometr
     : { spectralLength: frame.height, spatialLength: frame.width, spatialStride: 1, spectralStride: frame.width };
 }
 
-/** A band of spatial rows copied out of the frame with the dark subtracted: `values[r·L + p]`. */
-export interface Strip {
-  start: number;
-  rows: number;
+/**
+ * Spectral-contiguous access to spatial rows [first, end) of the frame, without copying for
+ * spectralAxis 'x' (rows are views of the frame) and through one blockwise transpose for 'y'.
+ * `raw` holds the stored values (for saturation), `dark` the dark frame in the same layout;
+ * the value of spatial row s at spectral pixel p is raw[i] − dark[i], i = (s − first)·L + offset + p
+ * with L = `rowStride`.
+ */
+export interface RowSource {
+  first: number;
+  end: number;
   spectralLength: number;
-  values: Float32Array;
-  /** 1 where the raw (pre-dark) pixel reached the saturation level. */
-  saturated: Uint8Array;
+  /** Spatial length of the frame: neighbours exist for rows 0..spatialLength − 1. */
+  spatialLength: number;
+  rowStride: number;
+  offset: number;
+  raw: Float32Array;
+  dark?: Float32Array;
 }
 
-/** Copies spatial rows [start, end) out of the frame, dark-subtracted, in spectral-contiguous order. */
-export function extractStrip(
-  frame: Frame,
-  dark: Frame | undefined,
-  geometry: AxisGeometry,
-  start: number,
-  end: number,
-  saturationLevel: number,
-): Strip {
+/** Rows [start, end) of the frame (clipped to it) as a {@link RowSource}. */
+export function rowSource(frame: Frame, dark: Frame | undefined, geometry: AxisGeometry, start: number, end: number): RowSource {
+  const first = Math.max(0, start);
+  const last = Math.min(geometry.spatialLength, end);
   const L = geometry.spectralLength;
-  const rows = end - start;
-  const values = new Float32Array(rows * L);
-  const saturated = new Uint8Array(rows * L);
-  const data = frame.data;
-  const darkData = dark?.data;
-  if (geometry.spectralStride === 1) {
-    for (let r = 0; r < rows; r++) {
-      const base = (start + r) * geometry.spatialStride;
-      const out = r * L;
-      for (let p = 0; p < L; p++) {
-        const raw = data[base + p];
-        if (raw >= saturationLevel) saturated[out + p] = 1;
-        values[out + p] = darkData ? raw - darkData[base + p] : raw;
-      }
-    }
-  } else {
-    // Spectral axis along frame rows: walk the frame row by row (contiguous reads) and scatter
-    // the few band columns into the strip.
-    const W = frame.width;
+  // One object literal with every field in one order, so every source shares one hidden class
+  // (mixed shapes made V8 deoptimise the loops that read them).
+  const make = (rowStride: number, offset: number, raw: Float32Array, darkData: Float32Array | undefined): RowSource => ({
+    first,
+    end: last,
+    spectralLength: L,
+    spatialLength: geometry.spatialLength,
+    rowStride,
+    offset,
+    raw,
+    dark: darkData,
+  });
+  if (geometry.spectralStride === 1) return make(geometry.spatialStride, first * geometry.spatialStride, frame.data, dark?.data);
+  // Spectral axis along frame columns: walk the frame row by row (contiguous reads) and scatter
+  // the band's columns into spectral-contiguous rows.
+  const rows = last - first;
+  const W = frame.width;
+  const transpose = (data: Float32Array): Float32Array => {
+    const out = new Float32Array(rows * L);
     for (let p = 0; p < L; p++) {
-      const base = p * W + start;
-      for (let r = 0; r < rows; r++) {
-        const raw = data[base + r];
-        const out = r * L + p;
-        if (raw >= saturationLevel) saturated[out] = 1;
-        values[out] = darkData ? raw - darkData[base + r] : raw;
-      }
+      const from = p * W + first;
+      for (let r = 0; r < rows; r++) out[r * L + p] = data[from + r];
     }
+    return out;
+  };
+  return make(L, 0, transpose(frame.data), dark ? transpose(dark.data) : undefined);
+}
+
+/** Flat index of (spatial row s, spectral pixel 0) in the source's arrays. */
+export function rowIndex(source: RowSource, s: number): number {
+  return (s - source.first) * source.rowStride + source.offset;
+}
+
+/** The smallest value seen by the last {@link sumAndMin} call (a module slot avoids an object per row). */
+let kernelMin = Infinity;
+
+/**
+ * Sum of data[base .. base + W) and, in {@link kernelMin}, its smallest value (NaN skipped).
+ * A small function called once per row: V8 optimises it fully instead of patching the one long
+ * loop of a function called once per frame. Four partial sums: one running sum is bound by the
+ * latency of each addition.
+ */
+function sumAndMin(data: Float32Array, base: number, W: number): number {
+  let mn = Infinity;
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let c = 0;
+  for (; c + 3 < W; c += 4) {
+    const r0 = data[base + c];
+    const r1 = data[base + c + 1];
+    const r2 = data[base + c + 2];
+    const r3 = data[base + c + 3];
+    if (r0 < mn) mn = r0;
+    if (r1 < mn) mn = r1;
+    if (r2 < mn) mn = r2;
+    if (r3 < mn) mn = r3;
+    s0 += r0;
+    s1 += r1;
+    s2 += r2;
+    s3 += r3;
   }
-  return { start, rows, spectralLength: L, values, saturated };
+  for (; c < W; c++) {
+    const raw = data[base + c];
+    if (raw < mn) mn = raw;
+    s0 += raw;
+  }
+  kernelMin = mn;
+  return s0 + s1 + s2 + s3;
 }
 
 /** One pass over the whole frame: the dark-subtracted spatial profile and the bad-pixel census. */
@@ -106,11 +150,8 @@ export function frameCensus(frame: Frame, dark: Frame | undefined, geometry: Axi
           sum += raw - darkData[base + c];
         }
       } else {
-        for (let c = 0; c < W; c++) {
-          const raw = data[base + c];
-          if (raw < mn) mn = raw;
-          sum += raw;
-        }
+        sum = sumAndMin(data, base, W);
+        mn = kernelMin;
       }
       sums[row] = sum;
     } else if (darkData) {

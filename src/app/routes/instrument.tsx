@@ -3,11 +3,13 @@ import { canManageInstrument, roleOn, useSession } from '@/features/auth/api/get
 import { useInstrument } from '@/features/instruments/api/get-instrument';
 import { useDeleteInstrument } from '@/features/instruments/api/delete-instrument';
 import { ProfileSummary } from '@/features/instruments/components/profile-summary';
-import { EmptyState, Loading, PageHeader, Panel } from '@/components/page';
+import { Loading, PageHeader, Panel } from '@/components/page';
 import { ErrorAlert } from '@/components/alert';
 import { Button } from '@/components/button';
 import { RoleBadge } from '@/components/role-badge';
 import { SafetyCaution } from '@/components/safety-caution';
+import { useVersions } from '@/features/versions/api/get-versions';
+import { VersionsPanel } from '@/features/versions/components/versions-panel';
 
 const linkButton =
   'inline-flex items-center rounded-md px-3.5 py-2 text-sm font-medium shadow-xs bg-white text-slate-800 ring-1 ring-slate-300 hover:bg-slate-50';
@@ -18,6 +20,7 @@ export function InstrumentRoute() {
   const session = useSession();
   const instrument = useInstrument(instrumentId);
   const remove = useDeleteInstrument();
+  const versions = useVersions(instrumentId);
   const navigate = useNavigate();
 
   if (instrument.isPending) return <Loading what="Loading instrument" />;
@@ -41,6 +44,9 @@ export function InstrumentRoute() {
         }
         actions={
           <>
+            <Link to={`/frames?instrumentId=${instrumentId}`} className={linkButton}>
+              Frames
+            </Link>
             <Link to={`/instruments/${instrumentId}/members`} className={linkButton}>
               Members
             </Link>
@@ -59,7 +65,9 @@ export function InstrumentRoute() {
           <ProfileSummary profile={data.profile} />
         </Panel>
         <Panel title="Calibrations">
-          <EmptyState>No calibration versions yet.</EmptyState>
+          {versions.isPending ? <Loading what="Loading versions" /> : null}
+          <ErrorAlert error={versions.error} title="Could not load the versions" />
+          {versions.data ? <VersionsPanel versions={versions.data} /> : null}
         </Panel>
         {canManage ? (
           <Panel title="Danger zone">

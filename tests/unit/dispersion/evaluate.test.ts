@@ -1,7 +1,7 @@
 /**
  * evaluateCalibration / calibrationWavelengthToPixel: values against grating.ts (the forward
  * model), the σ band against a brute-force J Σ Jᵀ with finite differences and against Monte Carlo
- * draws of the parameters, inverses by round-trip, and the speed target (2048 pixels < 2 ms).
+ * draws of the parameters, inverses by round-trip. (Speed is measured in `npm run bench`, not here.)
  */
 import { describe, expect, it } from 'vitest';
 import {

@@ -1,0 +1,79 @@
+import { useMemo } from 'react';
+import type uPlot from 'uplot';
+import type { AppliedSpectrum } from '../../../../shared/engine/apply.ts';
+import { UplotChart } from '@/components/uplot-chart';
+import { axisSeries, orderLabels, type OrderLabel, type SpectrumAxis } from '../lib/spectrum-axis';
+
+const FONT = '11px Fira Sans';
+
+/**
+ * A uPlot plugin that writes each order's name above its peak (uPlot draws the axes; this only
+ * adds text through its draw hook, in canvas pixels, skipping labels outside the plot area).
+ */
+function orderLabelsPlugin(labels: OrderLabel[]): uPlot.Plugin {
+  return {
+    hooks: {
+      draw: (u) => {
+        const { ctx } = u;
+        const { left, top, width, height } = u.bbox;
+        ctx.save();
+        ctx.font = `${Math.round(11 * devicePixelRatio)}px Fira Sans, sans-serif`;
+        ctx.textAlign = 'center';
+        ctx.textBaseline = 'bottom';
+        for (const label of labels) {
+          const cx = u.valToPos(label.x, 'x', true);
+          const cy = u.valToPos(label.y, 'y', true);
+          if (!(cx >= left && cx <= left + width)) continue;
+          const y = Math.max(top + 12 * devicePixelRatio, Math.min(top + height, cy) - 4 * devicePixelRatio);
+          ctx.fillStyle = '#0f172a';
+          ctx.fillText(label.text, cx, y);
+          ctx.strokeStyle = 'rgba(15, 118, 110, 0.5)';
+          ctx.beginPath();
+          ctx.moveTo(cx, y + 1 * devicePixelRatio);
+          ctx.lineTo(cx, Math.min(top + height, cy));
+          ctx.stroke();
+        }
+        ctx.restore();
+      },
+    },
+  };
+}
+
+export interface SpectrumChartProps {
+  spectrum: AppliedSpectrum;
+  axis: SpectrumAxis;
+  heightPx?: number;
+}
+
+/** The spectrum on the chosen axis with its 1-σ band and the harmonic labels on the detected peaks. */
+export function SpectrumChart({ spectrum, axis, heightPx = 320 }: SpectrumChartProps) {
+  const series = useMemo(() => axisSeries(spectrum, axis), [spectrum, axis]);
+  const labels = useMemo(() => orderLabels(spectrum, axis), [spectrum, axis]);
+  const data = useMemo<uPlot.AlignedData>(
+    () => [series.x, series.y, series.y.map((v, i) => v + series.ySigma[i]), series.y.map((v, i) => v - series.ySigma[i])],
+    [series],
+  );
+  const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
+    () => ({
+      scales: { x: { time: false } },
+      axes: [
+        { label: series.xLabel, font: FONT, labelFont: '12px Fira Sans' },
+        { label: series.yLabel, size: 70, font: FONT, labelFont: '12px Fira Sans' },
+      ],
+      series: [
+        { label: axis === 'wavelength' ? 'λ (nm)' : 'E (eV)' },
+        { label: axis === 'wavelength' ? 'counts / pixel' : 'counts / eV', stroke: '#0f766e', width: 1.25, points: { show: false } },
+        { label: '+1σ', stroke: 'rgba(13, 148, 136, 0.25)', width: 0.5, points: { show: false } },
+        { label: '−1σ', stroke: 'rgba(13, 148, 136, 0.25)', width: 0.5, points: { show: false } },
+      ],
+      bands: [{ series: [2, 3], fill: 'rgba(45, 212, 191, 0.18)' }],
+      plugins: [orderLabelsPlugin(labels)],
+    }),
+    [series.xLabel, series.yLabel, axis, labels],
+  );
+  return (
+    <div data-testid="spectrum-chart" data-axis={axis} data-labels={labels.map((l) => l.text).join(' ')}>
+      <UplotChart options={options} data={data} heightPx={heightPx} label={`Spectrum against ${series.xLabel} with harmonic labels`} />
+    </div>
+  );
+}

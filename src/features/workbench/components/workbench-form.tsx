@@ -1,0 +1,166 @@
+import { useState } from 'react';
+import type { WorkbenchModel } from '../../../../shared/api/workbench.ts';
+import { driverPresets, knownFilterMaterials } from '../../../../shared/engine/references.ts';
+import { Button } from '@/components/button';
+import { SelectField, TextField } from '@/components/field';
+import type { Pin } from '../lib/pins.ts';
+
+/** The workbench inputs as the form holds them. */
+export interface WorkbenchSettings {
+  driverNm: number;
+  driverTolerancePct: number;
+  parity: 'odd' | 'all';
+  filters: string[];
+  model: WorkbenchModel;
+  pins: Pin[];
+  darkFrameId: string;
+}
+
+export interface WorkbenchFormProps {
+  settings: WorkbenchSettings;
+  onChange(settings: WorkbenchSettings): void;
+  onRun(): void;
+  running: boolean;
+  darkFrames: { id: string; name: string }[];
+  /** False for roles that may not run the engine: the form is shown read-only. */
+  mayRun: boolean;
+}
+
+const PRESETS = driverPresets();
+const MATERIALS = knownFilterMaterials();
+
+function modelValue(model: WorkbenchModel): string {
+  if (model === 'auto' || model === 'grating') return model;
+  return `poly:${model.polynomialDegree}`;
+}
+
+function parseModel(value: string): WorkbenchModel {
+  if (value === 'auto' || value === 'grating') return value;
+  const degree = value.slice('poly:'.length);
+  return { polynomialDegree: degree === 'auto' ? 'auto' : Number(degree) };
+}
+
+/** Driver, tolerance, parity, filters, model and pins, and the Run button. */
+export function WorkbenchForm({ settings, onChange, onRun, running, darkFrames, mayRun }: WorkbenchFormProps) {
+  const [pinText, setPinText] = useState({ pixel: '', harmonic: '' });
+  const set = <K extends keyof WorkbenchSettings>(key: K, value: WorkbenchSettings[K]) => onChange({ ...settings, [key]: value });
+  const preset = PRESETS.find((p) => p.wavelengthNm === settings.driverNm);
+  const toggleFilter = (material: string) => {
+    const has = settings.filters.some((f) => f.split(/[:\s]/)[0].toLowerCase() === material.toLowerCase());
+    set('filters', has ? settings.filters.filter((f) => f.split(/[:\s]/)[0].toLowerCase() !== material.toLowerCase()) : [...settings.filters, material]);
+  };
+
+  return (
+    <form
+      className="flex flex-col gap-4"
+      aria-label="Workbench settings"
+      onSubmit={(e) => {
+        e.preventDefault();
+        onRun();
+      }}
+    >
+      <fieldset disabled={!mayRun} className="grid grid-cols-2 gap-3 md:grid-cols-4">
+        <SelectField
+          label="Driver preset"
+          value={preset?.id ?? ''}
+          onChange={(e) => {
+            const p = PRESETS.find((x) => x.id === e.target.value);
+            if (p) onChange({ ...settings, driverNm: p.wavelengthNm, driverTolerancePct: Number(((100 * p.toleranceNm) / p.wavelengthNm).toFixed(2)) });
+          }}
+          options={[{ value: '', label: 'custom' }, ...PRESETS.map((p) => ({ value: p.id, label: p.label }))]}
+        />
+        <TextField label="Driver wavelength (nm)" type="number" step="any" min="1" value={String(settings.driverNm)} onChange={(e) => set('driverNm', Number(e.target.value))} />
+        <TextField label="Driver tolerance (%)" type="number" step="any" min="0.01" max="20" value={String(settings.driverTolerancePct)} onChange={(e) => set('driverTolerancePct', Number(e.target.value))} />
+        <SelectField
+          label="Parity"
+          value={settings.parity}
+          onChange={(e) => set('parity', e.target.value as 'odd' | 'all')}
+          options={[
+            { value: 'odd', label: 'odd orders (one-colour driver)' },
+            { value: 'all', label: 'all orders (two-colour, solids)' },
+          ]}
+        />
+        <SelectField
+          label="Model"
+          value={modelValue(settings.model)}
+          onChange={(e) => set('model', parseModel(e.target.value))}
+          options={[
+            { value: 'auto', label: 'auto (grating equation)' },
+            { value: 'grating', label: 'grating equation' },
+            { value: 'poly:auto', label: 'polynomial, degree by the data' },
+            ...[1, 2, 3, 4, 5].map((d) => ({ value: `poly:${d}`, label: `polynomial, degree ${d}` })),
+          ]}
+        />
+        <SelectField label="Dark frame" value={settings.darkFrameId} onChange={(e) => set('darkFrameId', e.target.value)} options={[{ value: '', label: 'none' }, ...darkFrames.map((d) => ({ value: d.id, label: d.name }))]} />
+        <div className="col-span-2">
+          <TextField
+            label="Filters in the beam"
+            value={settings.filters.join(', ')}
+            onChange={(e) => set('filters', e.target.value.split(',').map((s) => s.trim()).filter(Boolean))}
+            hint="engine notation: Al, Zr:200 (200 nm); edges and transmissions from the reference tables"
+          />
+          <div className="mt-1.5 flex flex-wrap gap-1" aria-label="Filter materials">
+            {MATERIALS.map((m) => {
+              const on = settings.filters.some((f) => f.split(/[:\s]/)[0].toLowerCase() === m.toLowerCase());
+              return (
+                <button
+                  key={m}
+                  type="button"
+                  aria-pressed={on}
+                  onClick={() => toggleFilter(m)}
+                  className={`rounded-full px-2 py-0.5 text-xs ring-1 ${on ? 'bg-accent-700 text-white ring-accent-700' : 'bg-white text-slate-700 ring-slate-300 hover:bg-slate-50'}`}
+                >
+                  {m}
+                </button>
+              );
+            })}
+          </div>
+        </div>
+      </fieldset>
+      <div>
+        <p className="text-sm font-medium text-slate-700">Pins (a peak fixed to a harmonic order)</p>
+        <ul className="mt-1 flex flex-wrap gap-2" aria-label="Pins">
+          {settings.pins.length === 0 ? <li className="text-sm text-slate-500">none</li> : null}
+          {settings.pins.map((p) => (
+            <li key={p.pixel} className="flex items-center gap-1 rounded bg-accent-100 px-2 py-0.5 text-sm text-accent-800">
+              pixel {p.pixel} = q{p.harmonic}
+              {mayRun ? (
+                <button type="button" aria-label={`Remove pin at pixel ${p.pixel}`} className="ml-1 text-accent-800 hover:text-red-700" onClick={() => set('pins', settings.pins.filter((x) => x !== p))}>
+                  ×
+                </button>
+              ) : null}
+            </li>
+          ))}
+        </ul>
+        {mayRun ? (
+          <div className="mt-2 flex items-end gap-2">
+            <TextField label="Pin pixel" type="number" step="any" value={pinText.pixel} onChange={(e) => setPinText((t) => ({ ...t, pixel: e.target.value }))} />
+            <TextField label="Pin order q" type="number" step="1" min="1" value={pinText.harmonic} onChange={(e) => setPinText((t) => ({ ...t, harmonic: e.target.value }))} />
+            <Button
+              variant="secondary"
+              onClick={() => {
+                const pixel = Number(pinText.pixel);
+                const harmonic = Number(pinText.harmonic);
+                if (pinText.pixel !== '' && Number.isFinite(pixel) && Number.isInteger(harmonic) && harmonic > 0) {
+                  set('pins', [...settings.pins.filter((p) => Math.abs(p.pixel - pixel) >= 1), { pixel, harmonic }]);
+                  setPinText({ pixel: '', harmonic: '' });
+                }
+              }}
+            >
+              Add pin
+            </Button>
+          </div>
+        ) : null}
+      </div>
+      {mayRun ? (
+        <div>
+          <Button type="submit" pending={running}>
+            Run the engine
+          </Button>
+        </div>
+      ) : (
+        <p className="text-sm text-slate-500">Your role may look at the workbench but not run it.</p>
+      )}
+    </form>
+  );
+}
