@@ -2,19 +2,30 @@
  * Order assignment: decide the harmonic order q (and diffraction order m) of every peak, or say
  * honestly that the data cannot decide.
  *
- * Method (see ENGINE-NOTES.md): hypotheses are seeded from pairs of neighbouring strong peaks
- * (every harmonic pair allowed by parity, the realignment ranges and up to two missing orders in
- * between), each fitted with the physical grating model (grating.ts) with soft walls for the
- * realignment ranges and the driver tolerance, then grown outward (search.ts). Leftover peaks
- * are tested as m = 2 lines (position, and a narrower spatial profile when measured), else left
- * unexplained. Labellings are compared by −2 ln L (score.ts); `unique` only when every
- * contradicting labelling trails by ≥ 16 (≈ 4σ).
+ * Method (see ENGINE-NOTES.md): hypotheses are seeded from pairs of strong clean peaks (the
+ * neighbours of the strongest, and every pair among the five strongest, so that m = 2 lines or
+ * false peaks between two first-order lines do not block a seed), placed by a linear solve of
+ * centre and distance (no iterative fit), pruned by the realignment ranges, ranked by how many
+ * peaks they put on predicted lines, de-duplicated (seeds that differ by a uniform shift of their
+ * harmonics are one pattern), then grown outward with the physical grating model (grating.ts),
+ * every nuisance parameter (centre, distance, incidence, tilt, λ0) free inside soft walls
+ * (search.ts). Leftover peaks are tested as m = 2 lines (position, and a narrower spatial profile
+ * when measured) and kept only if the whole labelling scores better with them. The slips of the
+ * leading labelling (every first-order label ±1 and ±2 parity steps) are then fitted in earnest
+ * from several starts, because they are exactly the rivals that make a confident answer wrong.
+ * Labellings are compared by −2 ln L (score.ts); `unique` only when every contradicting
+ * labelling trails by ≥ 16 (≈ 4σ).
+ *
+ * Trust: a peak within 1.5 FWHM of the detector edge (a possibly truncated line) has its position
+ * uncertainty raised to 0.15 FWHM and seeds no hypothesis; a saturated peak ranks as bright
+ * whatever its fitted SNR and is not held to the "m = 2 is fainter than m = 1" test.
  *
  * Assumptions, stated in the result's notes:
  * - the effective driver wavelength lies in [nominal·(1 − tol), nominal] (ionisation blue-shifts
  *   harmonics; it does not red-shift them);
  * - without a known-wavelength anchor the absolute scale is known only to the driver tolerance:
- *   λ0 is then held at the middle of that interval, and `scaleSigmaRelative` is chosen so that
+ *   λ0 moves freely inside its wall while labellings are compared (the geometry can absorb it),
+ *   is reported at the middle of that interval, and `scaleSigmaRelative` is chosen so that
  *   ±2σ is the central 95 % of the uniform prior (0.95 · tol / 4). A pin fixes an order, not the
  *   scale: pins do not make a calibration anchored.
  */

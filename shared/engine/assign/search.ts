@@ -1,5 +1,5 @@
 /**
- * The labelling search: seed hypotheses from pairs of strong neighbouring peaks, fit the physical
+ * The labelling search: seed hypotheses from pairs of strong peaks (linearSeed), fit the physical
  * grating model, grow the labelling outward with further matching peaks, refit, then test the
  * leftovers as second-order lines. Each finished labelling is scored by −2 ln L (see score.ts).
  *

@@ -14,7 +14,7 @@ export interface RealignmentRanges {
   centerRelative: number;
   /** Half-range of the central diffraction angle when the profile states it, degrees. @default 0.3 */
   detectorAngleDeg: number;
-  /** Half-range of the detector tilt, degrees. @default 3 */
+  /** Half-range of the detector tilt, degrees (the profile states no tilt, so it is a wide nuisance range). @default 10 */
   tiltDeg: number;
 }
 

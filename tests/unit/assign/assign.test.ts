@@ -100,6 +100,20 @@ describe('assignOrders', () => {
     expect(r.best?.secondOrderPeaks).toBeGreaterThanOrEqual(1);
   });
 
+  it('seeds from saturated first-order lines even when their fitted SNR trails the m = 2 lines between them', () => {
+    // Clipped cores: the first-order lines' fitted SNR and area collapse (here to 20 and 3 %), below
+    // the m = 2 lines of twice their harmonic region; an assigner ranking by SNR alone would build its
+    // comb from the m = 2 lines.
+    const q2 = [55, 57, 59, 61, 63, 65, 67, 69, 71, 73];
+    const sim = simulatePeaks({ seed: 21, tolerancePct: 0.5, harmonicRange: [27, 73], secondOrder: q2, centroidSigmaPx: 0.02, perturb: { incidenceDeg: 0.1, distanceRelative: 0.01, centerShiftPx: 5, tiltDeg: 2 } });
+    const peaks: Peak[] = sim.peaks.map((p, i) => (sim.truth[i].diffractionOrder === 1 ? { ...p, saturated: true, snr: 20, area: 0.03 * p.area, pixelSigma: 0.05 } : { ...p }));
+    expect(sim.truth.filter((t) => t.diffractionOrder === 2).length).toBeGreaterThanOrEqual(4);
+    const r = assignOrders(peaks, { profile: sim.profile, pixelCount: 1024, driverNm: 800, driverTolerancePct: 0.5, parity: 'odd' });
+    expect(r.status).toBe('unique');
+    expect(labelsMatch(r, sim)).toBe(true);
+    expect(r.best?.labels.filter((l, i) => l.harmonic !== null && sim.truth[i].diffractionOrder === 1).length).toBe(sim.truth.filter((t) => t.diffractionOrder === 1).length);
+  });
+
   it("reports the m = 2 blend on an 'all'-parity comb (m = 2 of 2k sits exactly on m = 1 of k)", () => {
     // Orders 20–30 on the detector; 40–60 fall off it in m = 1, so their m = 2 lines could hide under 20–30.
     const sim = simulatePeaks({ seed: 8, parity: 'all', tolerancePct: 0.3, harmonicRange: [20, 30], centroidSigmaPx: 0.02 });
