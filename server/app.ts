@@ -28,6 +28,7 @@ import { instrumentVersionsRouter, versionsRouter, workbenchRouter } from './mod
 import { createLocalStore } from './storage/local-store.ts';
 import type { FrameStore } from './storage/frame-store.ts';
 import { frameSpectraRouter, instrumentSpectraRouter, runsRouter } from './modules/spectra/routes.ts';
+import { instrumentSpectraListRouter } from './modules/spectra-list/routes.ts';
 import { dbSources } from './modules/spectra/sources.ts';
 import type { ApplyQueue } from './modules/runs/queue.ts';
 import { unavailableQueue } from './modules/runs/unavailable-queue.ts';
@@ -103,6 +104,7 @@ export function createApp(deps: AppDeps): Express {
   const spectraDeps = { db, store: frameDeps.store, sources: dbSources, mailer, appUrl: config.appUrl, queue: deps.applyQueue ?? unavailableQueue };
   app.use('/api/frames', frameSpectraRouter(spectraDeps));
   app.use('/api/instruments', instrumentSpectraRouter(spectraDeps));
+  app.use('/api/instruments', instrumentSpectraListRouter(db));
   app.use('/api/runs', runsRouter(spectraDeps));
   app.use('/api', apiNotFound);
 

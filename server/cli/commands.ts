@@ -6,7 +6,7 @@ import { decodeFrame } from '../../shared/engine/frames/index.ts';
 import { calibrateFrame } from '../../shared/engine/calibrate.ts';
 import { reduceFrame } from '../../shared/engine/reduce.ts';
 import { findPeaks } from '../../shared/engine/peaks.ts';
-import { applyCalibration } from '../../shared/engine/apply.ts';
+import { applyCalibration, type ApplyOptions } from '../../shared/engine/apply.ts';
 import { EngineError } from '../../shared/engine/errors.ts';
 import { parseProfile, parseCalibrationFile } from './inputs.ts';
 import type { Calibration, LineShape, Parity, SpatialBand } from '../../shared/engine/types.ts';
@@ -65,6 +65,8 @@ export interface ApplyArgs {
    * `orderly apply` does.
    */
   regions?: { signal: SpatialBand; background: SpatialBand[]; lineShape?: LineShape };
+  /** Options of the apply stage (e.g. the filter-transmission correction); omitted: its defaults, as `orderly apply`. */
+  applyOptions?: ApplyOptions;
 }
 
 /** `runApply` with the pieces the server also needs: the detected peaks and the parsed calibration. */
@@ -91,7 +93,7 @@ export async function runApplyDetailed(args: ApplyArgs) {
     lineShape: bands.lineShape,
   });
   const peaks = findPeaks(lineout);
-  return { spectrum: applyCalibration(lineout, peaks, calibration), peaks, calibration };
+  return { spectrum: applyCalibration(lineout, peaks, calibration, args.applyOptions), peaks, calibration };
 }
 
 /** Applies a stored calibration with the signal/background bands and line shape it was made with. */

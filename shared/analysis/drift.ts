@@ -31,6 +31,12 @@ export interface DriftThreshold {
  */
 export const DEFAULT_DRIFT_THRESHOLD: DriftThreshold = { sigma: 3, px: 1 };
 
+/** The flag rule: |shift| above `sigma` of its σ and above `px` pixels. */
+export function exceedsThreshold(shiftPx: number | null, shiftPxSigma: number | null, threshold: DriftThreshold): boolean {
+  if (shiftPx === null || shiftPxSigma === null) return false;
+  return Math.abs(shiftPx) > threshold.px && Math.abs(shiftPx) > threshold.sigma * shiftPxSigma;
+}
+
 /** Centroid σ below this (px) is floored, so one very bright line does not take all the weight. */
 const MIN_PIXEL_SIGMA = 0.01;
 
@@ -157,6 +163,6 @@ export function computeDrift(input: DriftInput, threshold: DriftThreshold = DEFA
     usedLines.map((l) => l.offsetMeV),
     usedIndex.map((i) => lines[i].offsetPxSigma * meVPerPx[i]),
   );
-  const flagged = Math.abs(px.mean) > threshold.px && Math.abs(px.mean) > threshold.sigma * px.sigma;
+  const flagged = exceedsThreshold(px.mean, px.sigma, threshold);
   return { shiftPx: px.mean, shiftPxSigma: px.sigma, shiftMeV: mev.mean, shiftMeVSigma: mev.sigma, reducedChiSquare: px.reduced, flagged, ...base };
 }

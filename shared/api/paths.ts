@@ -43,6 +43,8 @@ export const paths = {
   frameSpectrumCsv: (frameId: string, version?: number) => `/api/frames/${enc(frameId)}/spectrum.csv${version !== undefined ? `?version=${version}` : ''}`,
   instrumentRuns: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/runs`,
   instrumentReapply: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/spectra/reapply`,
+  /** GET: the instrument's spectra (frame, version, stale, drift flag); `stale` filters. */
+  instrumentSpectra: (instrumentId: string, stale?: boolean) => `/api/instruments/${enc(instrumentId)}/spectra${stale !== undefined ? `?stale=${stale}` : ''}`,
   instrumentDrift: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/drift`,
   run: (runId: string) => `/api/runs/${enc(runId)}`,
   runCancel: (runId: string) => `/api/runs/${enc(runId)}/cancel`,

@@ -15,6 +15,8 @@ export const driftThresholdSchema = z.object({
 /** `?version=N` picks a version by number instead of the one valid at the frame's time. */
 export const spectrumQuerySchema = z.object({
   version: z.coerce.number({ error: 'version must be a whole number' }).int({ message: 'version must be a whole number' }).min(1, { message: 'version must be ≥ 1' }).optional(),
+  /** Divide by the transmission of the calibration's filters (computed on request, not stored). */
+  filterCorrection: z.enum(['true', 'false'], { error: 'filterCorrection must be true or false' }).optional().transform((v) => v === 'true'),
 });
 export type SpectrumQuery = z.infer<typeof spectrumQuerySchema>;
 

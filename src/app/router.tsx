@@ -15,9 +15,15 @@ import { FramesRoute } from './routes/frames';
 import { FrameViewerRoute } from './routes/frame-viewer';
 import { WorkbenchRoute } from './routes/workbench';
 import { VersionRoute } from './routes/version';
+import { SpectrumRoute } from './routes/spectrum';
+import { RunRoute } from './routes/run';
+import { InstrumentSpectraRoute } from './routes/instrument-spectra';
+import { VersionReportRoute } from './routes/version-report';
 
 /** Every page of the client. Public: sign-in and the invitation link; the rest needs a session. */
 export const routes = [
+  // The printable calibration report: signed-in, but outside the app frame so paper holds only the report.
+  { element: <RequireAuth />, children: [{ path: '/versions/:versionId/report', element: <VersionReportRoute /> }] },
   {
     element: <AppLayout />,
     children: [
@@ -37,6 +43,9 @@ export const routes = [
           { path: '/frames/:frameId', element: <FrameViewerRoute /> },
           { path: '/instruments/:instrumentId/workbench', element: <WorkbenchRoute /> },
           { path: '/versions/:versionId', element: <VersionRoute /> },
+          { path: '/frames/:frameId/spectrum', element: <SpectrumRoute /> },
+          { path: '/runs/:runId', element: <RunRoute /> },
+          { path: '/instruments/:instrumentId/spectra', element: <InstrumentSpectraRoute /> },
         ],
       },
       { element: <RequireAuth adminOnly />, children: [{ path: '/outbox', element: <OutboxRoute /> }] },

@@ -40,6 +40,8 @@ export const queryKeys = {
     all: ['spectra'] as const,
     /** A frame's spectrum; `version` undefined = the version valid at the frame's time. */
     detail: (frameId: string, version: number | undefined) => [...queryKeys.spectra.all, 'detail', frameId, version ?? 'valid'] as const,
+    /** An instrument's spectra list; `stale` undefined = all. */
+    list: (instrumentId: string, stale: boolean | undefined) => [...queryKeys.spectra.all, 'list', instrumentId, stale ?? 'all'] as const,
   },
   runs: {
     all: ['runs'] as const,

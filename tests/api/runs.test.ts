@@ -189,6 +189,12 @@ describe('runs', () => {
     await insertApprovedVersion(t.db, w.instrument.id, w.owner.id, 2, v2From);
     await t.db.update(spectra).set({ stale: true }).where(eq(spectra.versionId, w.v1.id));
 
+    const listed = (await c.agent.get(paths.instrumentSpectra(w.instrument.id, true)).expect(200)).body;
+    expect(listed.staleFrames).toBe(2);
+    expect(listed.items.map((i: { frameId: string; version: number; versionState: string }) => [i.version, i.versionState])).toEqual([
+      [1, 'superseded'],
+      [1, 'superseded'],
+    ]);
     const created = (await c.agent.post(paths.instrumentReapply(w.instrument.id)).set('X-CSRF-Token', c.csrf).expect(201)).body;
     expect(created.kind).toBe('reapply');
     expect(created.total).toBe(2);
@@ -201,6 +207,7 @@ describe('runs', () => {
       [1, true],
       [2, false],
     ]);
+    expect((await c.agent.get(paths.instrumentSpectra(w.instrument.id)).expect(200)).body.staleFrames).toBe(0);
     // Nothing left to re-apply.
     await c.agent.post(paths.instrumentReapply(w.instrument.id)).set('X-CSRF-Token', c.csrf).expect(409);
   });

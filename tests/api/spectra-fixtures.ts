@@ -137,15 +137,15 @@ export interface SpectraTestApp {
   close(): Promise<void>;
 }
 
-/** The real app over this run's database, a temp local frame store, the SMTP sink, and `queue`. */
-export async function startSpectraApp(queue?: ApplyQueue): Promise<SpectraTestApp> {
+/** The real app over this run's database, a temp local frame store (or `storeOverride`), the SMTP sink, and `queue`. */
+export async function startSpectraApp(queue?: ApplyQueue, storeOverride?: FrameStore): Promise<SpectraTestApp> {
   const databaseUrl = inject('databaseUrl');
   const pool = createPool(databaseUrl, 6);
   const db = createDb(pool);
   const sink: MailSink = await startMailSink(db, { port: 0 });
   const mailer = createMailer(`smtp://127.0.0.1:${sink.port}`, 'Orderly tests <orderly@localhost>', true);
   const storeDir = mkdtempSync(join(tmpdir(), 'orderly-spectra-test-'));
-  const store = createLocalStore(storeDir);
+  const store = storeOverride ?? createLocalStore(storeDir);
   const app = createApp({
     config: { sessionSecret: 'api-test-session-secret-0123456789', appUrl: 'http://127.0.0.1:5480', staticDir: '/nonexistent-static-dir', signInLimitPerMinute: 1000 },
     db,

@@ -4,7 +4,7 @@
  * run as a process on the same frame file and calibration file.
  */
 import { execFile } from 'node:child_process';
-import { writeFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { promisify } from 'node:util';
 import { and, eq } from 'drizzle-orm';
@@ -103,7 +103,7 @@ describe('GET /api/frames/:frameId/spectrum', () => {
     expect(await t.db.select().from(spectra).where(eq(spectra.frameId, frame.id))).toHaveLength(1);
   });
 
-  it('permissions: outsiders get 404, viewers read without storing, bearer-less anonymous 401', async () => {
+  it('permissions: outsiders get 404, viewers read without storing, anonymous 401, an API token works', async () => {
     const w = await world();
     const frame = await insertFrame(t.db, t.store, w.instrument.id, frameBytes(26), { takenAt: new Date('2026-11-04T10:00:00Z') });
     const outsider = await signIn(t.app, w.outsider.email);
@@ -116,6 +116,12 @@ describe('GET /api/frames/:frameId/spectrum', () => {
     expect(await t.db.select().from(spectra).where(eq(spectra.frameId, frame.id))).toHaveLength(0);
     const { default: request } = await import('supertest');
     await request(t.app).get(paths.frameSpectrum(frame.id)).expect(401);
+    // An acquisition computer with a personal API token (the student's) gets the same spectrum.
+    const student = await signIn(t.app, w.student.email);
+    const token = (await student.agent.post(paths.tokens()).set('X-CSRF-Token', student.csrf).send({ name: 'acquisition pc' }).expect(201)).body.token;
+    const byToken = await request(t.app).get(paths.frameSpectrum(frame.id)).set('Authorization', `Bearer ${token}`).expect(200);
+    expect(byToken.body.calibration.version).toBe(1);
+    expect(await t.db.select().from(spectra).where(eq(spectra.frameId, frame.id))).toHaveLength(1);
     await viewer.agent.get('/api/frames/not-a-uuid/spectrum').expect(400);
   });
 
@@ -131,6 +137,69 @@ describe('GET /api/frames/:frameId/spectrum', () => {
     expect(lines).toHaveLength(1 + 512);
     const row100 = lines[101].split(',').map(Number);
     expect(row100).toEqual([100, json.wavelengthNm[100], json.wavelengthSigmaNm[100], json.energyEv[100], json.intensity[100], json.intensitySigma[100], json.intensityPerEv[100], json.intensityPerEvSigma[100]]);
+  });
+});
+
+describe('frames in the S3 store', () => {
+  it('the spectrum route reads the frame from an S3-compatible store (s3rver) and gives the same result as `orderly apply`', async () => {
+    const { startS3Fake } = await import('../support/s3-fake.ts');
+    const { createS3Store } = await import('../../server/storage/s3-store.ts');
+    const fake = await startS3Fake();
+    const s3 = createS3Store(fake.options);
+    const onS3 = await startSpectraApp(undefined, s3);
+    try {
+      const w = await world();
+      const bytes = frameBytes(90);
+      const viaS3 = await insertFrame(onS3.db, s3, w.instrument.id, bytes, { takenAt: new Date('2026-11-27T10:00:00Z') });
+      expect(await t.store.has(viaS3.sha256)).toBe(false);
+      const c = await signIn(onS3.app, w.student.email);
+      const fromS3 = (await c.agent.get(paths.frameSpectrum(viaS3.id)).expect(200)).body;
+      const framePath = join(t.storeDir, 's3-check.tif');
+      writeFileSync(framePath, bytes);
+      const calPath = join(t.storeDir, 's3-check-cal.json');
+      writeFileSync(calPath, JSON.stringify(lab().calibration));
+      const cli = await run(process.execPath, [resolve('bin/orderly.mjs'), 'apply', framePath, '--calibration', calPath, '--json'], { maxBuffer: 64 * 2 ** 20 });
+      const { calibration: _c, drift: _d, ...rest } = fromS3;
+      expect(rest).toEqual(JSON.parse(cli.stdout));
+    } finally {
+      await onS3.close();
+      s3.client.destroy();
+      await fake.close();
+    }
+  });
+});
+
+describe('filter-transmission correction', () => {
+  it('?filterCorrection=true divides by the filters’ transmission (Henke-based reference table), computed and not stored', async () => {
+    const w = await world();
+    // Version 2 with a Mg 200 nm filter listed (same map); this spectrometer sees 62-80 eV, above the Mg L2,3 edge (~50 eV).
+    const withFilter = { ...lab().calibration, filters: ['Mg 200nm'] };
+    await t.db.update(calibrationVersions).set({ validUntil: new Date('2026-11-25T00:00:00Z'), state: 'superseded' }).where(eq(calibrationVersions.id, w.v1.id));
+    await insertApprovedVersion(t.db, w.instrument.id, w.owner.id, 2, new Date('2026-11-25T00:00:00Z'), withFilter);
+    const frame = await insertFrame(t.db, t.store, w.instrument.id, frameBytes(80), { takenAt: new Date('2026-11-26T10:00:00Z') });
+    const c = await signIn(t.app, w.student.email);
+    const plain = (await c.agent.get(paths.frameSpectrum(frame.id)).expect(200)).body;
+    const corrected = (await c.agent.get(`${paths.frameSpectrum(frame.id)}?filterCorrection=true`).expect(200)).body;
+    expect(plain.filterTransmission).toBeUndefined();
+    expect(corrected.filterTransmission).toHaveLength(512);
+    // Reference: T(E) of a free-standing 200 nm Mg foil, Henke/CXRO f2 via periodictable 1.6.0
+    // (tests/fixtures/reference/xray/filters.json, copied from /work/shared/reference).
+    const ref = JSON.parse(readFileSync('tests/fixtures/reference/xray/filters.json', 'utf8')).filters.find((f: { material: string; thicknessNm: number }) => f.material === 'Mg' && f.thicknessNm === 200);
+    let checked = 0;
+    for (let i = 0; i < 512; i += 16) {
+      const e = plain.energyEv[i];
+      if (!(e > 55 && e < 290)) continue; // above the edge, inside the table
+      const k = ref.energyEv.findIndex((x: number) => x > e);
+      const f = (e - ref.energyEv[k - 1]) / (ref.energyEv[k] - ref.energyEv[k - 1]);
+      const tRef = ref.transmission[k - 1] * (1 - f) + ref.transmission[k] * f;
+      expect(Math.abs(corrected.filterTransmission[i] / tRef - 1)).toBeLessThan(0.03);
+      expect(corrected.intensity[i] * Math.max(corrected.filterTransmission[i], 1e-3)).toBeCloseTo(plain.intensity[i], 6);
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(3);
+    const rows = await t.db.select().from(spectra).where(eq(spectra.frameId, frame.id));
+    expect(rows).toHaveLength(1);
+    expect(rows[0].result.filterTransmission).toBeUndefined();
   });
 });
 

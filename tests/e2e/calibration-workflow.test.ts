@@ -210,8 +210,8 @@ describe('recalibration workflow in the browser', () => {
   let pool: ReturnType<typeof createPool>;
   let instrumentId = '';
   let scenario: SimScenario;
-  const truths: SimTruth[] = [];
   const pinLines: ReturnType<typeof pinnableLine>[] = [];
+  const truths: SimTruth[] = [];
   const files: string[] = [];
   let badFile = '';
   let frameIds: string[] = [];
@@ -357,6 +357,39 @@ describe('recalibration workflow in the browser', () => {
     }
     await expect.poll(() => page.getByTestId('background-band').allTextContents()).toEqual(BACKGROUND.map((b, i) => `background ${i + 1}${b.start}–${b.end}Remove`));
 
+    // Line shape: drag the guide's lower end 10 px along the spectral axis (upper end fixed).
+    // Handles sit at ±h = ±(86 − 1)/2 rows from the band centre, so tilt = 10/(2h) and
+    // curvature = 10/(2h²) (regions.ts lineShapeFromHandles); then set both back to 0 by typing.
+    {
+      const canvasBox = await page.getByTestId('frame-stage').locator('canvas').first().boundingBox();
+      if (!canvasBox) throw new Error('no stage');
+      const stageEl = page.getByTestId('frame-stage');
+      const scale = Number(await stageEl.getAttribute('data-scale'));
+      const ox = Number(await stageEl.getAttribute('data-offset-x'));
+      const oy = Number(await stageEl.getAttribute('data-offset-y'));
+      const h = (SIGNAL.end - SIGNAL.start - 1) / 2;
+      const centre = (SIGNAL.start + SIGNAL.end - 1) / 2;
+      const at = (col: number, row: number) => ({ x: canvasBox.x + ox + col * scale, y: canvasBox.y + oy + row * scale });
+      const from = at(512, centre + h);
+      const to = at(522, centre + h);
+      await page.mouse.move(from.x, from.y);
+      await page.mouse.down();
+      await page.mouse.move(to.x, to.y, { steps: 5 });
+      await page.mouse.up();
+      // The browser rounds the pointer to whole screen pixels (~1.2 image px here), so the shift
+      // comes back within 1 px of 10; for a fixed upper end, curvature = tilt / h exactly.
+      await expect.poll(async () => Number(await page.getByLabel('Tilt (px per px)').inputValue())).toBeGreaterThan(0);
+      const tilt = Number(await page.getByLabel('Tilt (px per px)').inputValue());
+      expect(Math.abs(tilt * 2 * h - 10)).toBeLessThan(1);
+      expect(Number(await page.getByLabel('Curvature (px per px²)').inputValue())).toBeCloseTo(tilt / h, 5);
+      await page.getByLabel('Tilt (px per px)').fill('0');
+      await page.getByLabel('Tilt (px per px)').press('Enter');
+      await page.getByLabel('Curvature (px per px²)').fill('0');
+      await page.getByLabel('Curvature (px per px²)').press('Enter');
+      await expect.poll(() => page.getByLabel('Tilt (px per px)').inputValue()).toBe('0');
+      expect(await page.getByLabel('Curvature (px per px²)').inputValue()).toBe('0');
+    }
+
     // Hover readout: pixel and counts (no approved calibration yet, so no wavelength).
     const stage = page.getByTestId('frame-stage');
     const box = await stage.boundingBox();
@@ -459,6 +492,22 @@ describe('recalibration workflow in the browser', () => {
       })
       .toMatch(/wavelength [\d.]+ ± [\d.]+ nm.*photon energy [\d.]+ eV/);
     await screenshot(page, 'frame-viewer-calibrated');
+  });
+
+  it('after one true pin, every peak of both approved versions carries its simulated (true) order', async () => {
+    // Checked against the simulator's truth, not against the engine: a pin must not turn an
+    // ambiguous comb into a confidently wrong labelling.
+    const { page } = browser;
+    for (const [i, url] of [version1Url, version2Url].entries()) {
+      const version = await callApi(page, 'GET', `/api/${url.replace(/^\//, '')}`);
+      const peaks = (version.body.result as { peaks: { pixel: number; harmonic: number | null }[] }).peaks;
+      const shown = peaks.map((p) => ({ pixel: Math.round(p.pixel), harmonic: p.harmonic }));
+      const truth = truths[i].lines
+        .filter((l) => l.visible)
+        .map((l) => ({ pixel: Math.round(l.pixel), harmonic: l.harmonic }))
+        .sort((a, b) => a.pixel - b.pixel);
+      expect(shown).toEqual(truth);
+    }
   });
 
   it('a viewer can look but not change anything', async () => {

@@ -150,3 +150,22 @@ export async function clearStaleOfApprovedVersions(db: Executor, instrumentId: s
       ),
     );
 }
+
+/** The instrument's spectra with their frame and version facts, newest frame first. */
+export function listSpectrumSummaries(db: Executor, instrumentId: string, options: { stale?: boolean; limit: number }) {
+  const conditions = [eq(spectra.instrumentId, instrumentId)];
+  if (options.stale !== undefined) conditions.push(eq(spectra.stale, options.stale));
+  return db
+    .select({
+      spectrum: spectra,
+      frameName: frames.originalName,
+      takenAt: frames.takenAt,
+      versionState: calibrationVersions.state,
+    })
+    .from(spectra)
+    .innerJoin(frames, eq(frames.id, spectra.frameId))
+    .innerJoin(calibrationVersions, eq(calibrationVersions.id, spectra.versionId))
+    .where(and(...conditions))
+    .orderBy(desc(frames.takenAt), desc(spectra.updatedAt))
+    .limit(options.limit);
+}

@@ -7,10 +7,11 @@ import { z } from 'zod';
 import { createRunSchema, scanQuerySchema } from '../../../shared/api/runs.ts';
 import { driftQuerySchema, spectrumQuerySchema } from '../../../shared/api/spectra.ts';
 import { spectrumToCsv } from '../../../shared/api/spectrum-csv.ts';
+import { listSpectraQuerySchema } from '../../../shared/api/spectra-list.ts';
 import { requireUser } from '../../auth/middleware.ts';
 import { validated } from '../../lib/validate.ts';
 import { cancelRun, createRun, getRun, reapplyStale, retryRun, scanOfRun, type RunsDeps } from '../runs/service.ts';
-import { driftSeries, getSpectrum } from './service.ts';
+import { driftSeries, getSpectrum, listInstrumentSpectra } from './service.ts';
 
 const frameParams = z.object({ frameId: z.uuid({ error: 'frameId must be a UUID' }) });
 const instrumentParams = z.object({ instrumentId: z.uuid({ error: 'instrumentId must be a UUID' }) });
@@ -22,14 +23,14 @@ export function frameSpectraRouter(deps: RunsDeps): Router {
     '/:frameId/spectrum',
     requireUser,
     validated({ params: frameParams, query: spectrumQuerySchema }, async (req, res, { params, query }) => {
-      res.json(await getSpectrum(deps, req.user!, params.frameId, query.version));
+      res.json(await getSpectrum(deps, req.user!, params.frameId, query.version, { filterCorrection: query.filterCorrection }));
     }),
   );
   router.get(
     '/:frameId/spectrum.csv',
     requireUser,
     validated({ params: frameParams, query: spectrumQuerySchema }, async (req, res, { params, query }) => {
-      const spectrum = await getSpectrum(deps, req.user!, params.frameId, query.version);
+      const spectrum = await getSpectrum(deps, req.user!, params.frameId, query.version, { filterCorrection: query.filterCorrection });
       res
         .type('text/csv; charset=utf-8')
         .attachment(`spectrum-${params.frameId}-v${spectrum.calibration.version}.csv`)
@@ -46,6 +47,13 @@ export function instrumentSpectraRouter(deps: RunsDeps): Router {
     requireUser,
     validated({ params: instrumentParams, query: driftQuerySchema }, async (req, res, { params, query }) => {
       res.json(await driftSeries(deps, req.user!, params.instrumentId, query.from ? new Date(query.from) : undefined, query.to ? new Date(query.to) : undefined));
+    }),
+  );
+  router.get(
+    '/:instrumentId/spectra',
+    requireUser,
+    validated({ params: instrumentParams, query: listSpectraQuerySchema }, async (req, res, { params, query }) => {
+      res.json(await listInstrumentSpectra(deps, req.user!, params.instrumentId, { stale: query.stale === undefined ? undefined : query.stale === 'true', limit: query.limit }));
     }),
   );
   router.post(

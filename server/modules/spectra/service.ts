@@ -7,9 +7,10 @@
  * calibration was made with (which the engine found automatically when none were drawn) — the
  * last case is exactly what `orderly apply` does.
  */
-import { DEFAULT_DRIFT_THRESHOLD, computeDrift, type DriftThreshold } from '../../../shared/analysis/drift.ts';
+import { DEFAULT_DRIFT_THRESHOLD, computeDrift, exceedsThreshold, type DriftThreshold } from '../../../shared/analysis/drift.ts';
 import type { Regions } from '../../../shared/api/frames.ts';
 import type { DriftPoint, DriftSeries, RegionsSource, SpectrumResponse } from '../../../shared/api/spectra.ts';
+import type { SpectrumList } from '../../../shared/api/spectra-list.ts';
 import type { SessionUser } from '../../../shared/api/session.ts';
 import { EngineError } from '../../../shared/engine/errors.ts';
 import { runApplyDetailed } from '../../cli/commands.ts';
@@ -22,7 +23,7 @@ import { instrumentAccess } from '../../auth/access.ts';
 import { findInstrumentById } from '../instruments/queries.ts';
 import { recordAudit } from '../audit/service.ts';
 import { notifyDriftEpisode } from '../notices/service.ts';
-import { closeEpisode, findSpectrum, listDriftRows, listEpisodes, openEpisode, upsertSpectrum, type SpectrumUpsert } from './queries.ts';
+import { closeEpisode, findSpectrum, listDriftRows, listEpisodes, listSpectrumSummaries, listStaleFrameIds, openEpisode, upsertSpectrum, type SpectrumUpsert } from './queries.ts';
 import type { FrameFacts, SpectrumSources, VersionFacts } from './sources.ts';
 
 export interface SpectraDeps {
@@ -87,7 +88,7 @@ interface Computed {
   drift: ReturnType<typeof computeDrift>;
 }
 
-async function compute(deps: SpectraDeps, frame: FrameFacts, version: VersionFacts, userId: string | null): Promise<Computed> {
+async function compute(deps: SpectraDeps, frame: FrameFacts, version: VersionFacts, userId: string | null, filterCorrection = false): Promise<Computed> {
   const { regions, source } = await resolveRegions(deps, frame);
   const bytes = await deps.store.get(frame.sha256);
   let detailed: Awaited<ReturnType<typeof runApplyDetailed>>;
@@ -97,6 +98,7 @@ async function compute(deps: SpectraDeps, frame: FrameFacts, version: VersionFac
       page: frame.page,
       calibrationJson: version.calibration,
       regions: regions ? { signal: regions.signal, background: regions.background, lineShape: regions.lineShape } : undefined,
+      applyOptions: filterCorrection ? { filterCorrection: true } : undefined,
     });
   } catch (error) {
     engineFailure(error);
@@ -156,7 +158,8 @@ export function toSpectrumResponse(row: SpectrumRow, version: Pick<VersionFacts,
       shiftPxSigma: row.driftShiftPxSigma,
       shiftMeV: row.driftShiftMeV,
       shiftMeVSigma: row.driftShiftMeVSigma,
-      flagged: row.driftFlagged,
+      // Against the owner's current threshold (the stored flag is the one the episode logic saw).
+      flagged: exceedsThreshold(row.driftShiftPx, row.driftShiftPxSigma, threshold),
       matchedPeaks: row.driftMatchedPeaks,
       threshold,
     },
@@ -199,8 +202,11 @@ export async function makeSpectrum(
   return row;
 }
 
-/** GET /api/frames/:frameId/spectrum[?version=N]. */
-export async function getSpectrum(deps: SpectraDeps, user: SessionUser, frameId: string, versionNumber?: number): Promise<SpectrumResponse> {
+/**
+ * GET /api/frames/:frameId/spectrum[?version=N][&filterCorrection=true]. The stored spectrum is
+ * the uncorrected one (what `orderly apply` prints); a filter-corrected one is computed per request.
+ */
+export async function getSpectrum(deps: SpectraDeps, user: SessionUser, frameId: string, versionNumber?: number, options: { filterCorrection?: boolean } = {}): Promise<SpectrumResponse> {
   const frame = await deps.sources.frame(deps.db, frameId);
   if (!frame) throw new NotFoundError('No such frame.');
   const access = await instrumentAccess(deps.db, user, frame.instrumentId).catch(() => {
@@ -209,18 +215,15 @@ export async function getSpectrum(deps: SpectraDeps, user: SessionUser, frameId:
   if (frame.kind === 'dark') throw new HttpError(400, 'validation', 'This is a dark frame; spectra are made from signal frames.');
   const version = await resolveVersion(deps, frame, versionNumber);
   const threshold = await driftThresholdOf(deps.db, frame.instrumentId);
-  if (mayMakeSpectra(access)) {
-    const row = await makeSpectrum(deps, frame, version, user.id);
-    return toSpectrumResponse(row, version, threshold);
-  }
-  // Viewers read: a stored spectrum, else one computed for them and not kept.
-  const existing = await findSpectrum(deps.db, frame.id, version.id);
-  if (existing) return toSpectrumResponse(existing, version, threshold);
-  const { values } = await compute(deps, frame, version, null);
+  const maker = mayMakeSpectra(access);
+  const stored = maker ? await makeSpectrum(deps, frame, version, user.id) : await findSpectrum(deps.db, frame.id, version.id);
+  if (stored && !options.filterCorrection) return toSpectrumResponse(stored, version, threshold);
+  // Viewers without a stored spectrum, and filter-corrected requests: computed for this answer, not kept.
+  const { values } = await compute(deps, frame, version, null, options.filterCorrection);
   const now = new Date();
   const transient: SpectrumRow = {
     ...values,
-    id: '',
+    id: stored?.id ?? '',
     regions: values.regions ?? null,
     driftShiftPx: values.driftShiftPx ?? null,
     driftShiftPxSigma: values.driftShiftPxSigma ?? null,
@@ -229,7 +232,7 @@ export async function getSpectrum(deps: SpectraDeps, user: SessionUser, frameId:
     driftMatchedPeaks: values.driftMatchedPeaks ?? 0,
     driftFlagged: values.driftFlagged ?? false,
     createdBy: null,
-    stale: false,
+    stale: stored?.stale ?? false,
     createdAt: now,
     updatedAt: now,
   };
@@ -254,7 +257,7 @@ export async function driftSeries(deps: Pick<SpectraDeps, 'db'>, user: SessionUs
       shiftPx: s.driftShiftPx!,
       shiftPxSigma: s.driftShiftPxSigma ?? 0,
       shiftMeV: s.driftShiftMeV,
-      flagged: s.driftFlagged,
+      flagged: exceedsThreshold(s.driftShiftPx, s.driftShiftPxSigma, threshold),
       matchedPeaks: s.driftMatchedPeaks,
     });
   }
@@ -265,4 +268,27 @@ export async function driftSeries(deps: Pick<SpectraDeps, 'db'>, user: SessionUs
     firstFrameId: e.firstFrameId,
   }));
   return { instrumentId, threshold, points, episodes };
+}
+
+/** GET /api/instruments/:instrumentId/spectra[?stale=true|false&limit=N] — every member may read. */
+export async function listInstrumentSpectra(deps: Pick<SpectraDeps, 'db'>, user: SessionUser, instrumentId: string, query: { stale?: boolean; limit: number }): Promise<SpectrumList> {
+  await instrumentAccess(deps.db, user, instrumentId);
+  const rows = await listSpectrumSummaries(deps.db, instrumentId, query);
+  const staleFrames = (await listStaleFrameIds(deps.db, instrumentId)).length;
+  return {
+    items: rows.map(({ spectrum: s, frameName, takenAt, versionState }) => ({
+      id: s.id,
+      frameId: s.frameId,
+      frameName,
+      takenAt: takenAt.toISOString(),
+      versionId: s.versionId,
+      version: s.versionNumber,
+      versionState,
+      stale: s.stale,
+      driftFlagged: s.driftFlagged,
+      createdAt: s.createdAt.toISOString(),
+      updatedAt: s.updatedAt.toISOString(),
+    })),
+    staleFrames,
+  };
 }

@@ -136,6 +136,22 @@ function jacobian(problem: Problem, theta: Float64Array, skip: number, withPenal
   return { a, rows };
 }
 
+/**
+ * Stopping rule, after MINPACK lmder (Moré, Garbow & Hillstrom, "User Guide for MINPACK-1",
+ * ANL-80-74, 1980, §2.3 and lmder's info = 1, 2): with actred = 1 − χ²_trial/χ² and the linear
+ * model's predicted reduction prered = (‖Jδ‖² + 2μ‖Dδ‖²)/χ², stop when |actred| ≤ FTOL and
+ * prered ≤ FTOL (then ‖Jδ‖ ≤ √FTOL·‖r‖: the step moves the fit by ~1e-5 of its residual norm, far
+ * inside the parameter uncertainties), tested on rejected trials too, so that a fit already at its
+ * optimum stops after one trial instead of raising μ ~30 times; or when an accepted step is tiny
+ * against the parameters, ‖Dδ‖ ≤ XTOL·‖Dθ‖ (D = Jacobian column norms; as a standard error
+ * σ_j ≥ 1/D_j, each |δ_j|/σ_j ≤ XTOL·‖Dθ‖, ~1e-3 on the bench frames) while it gains ≤ FTOL; or
+ * when μ passes MU_CAP after consecutive rejections (no decrease left at this precision, MINPACK's
+ * info = 6/7).
+ */
+const FTOL = 1e-10;
+const XTOL = 1e-10;
+const MU_CAP = 1e16;
+
 /** Levenberg–Marquardt from theta0; returns the best parameters and the iteration count. */
 function levenbergMarquardt(problem: Problem, theta0: Float64Array, skip: number, maxIterations: number): { theta: Float64Array; cost: number; iterations: number } {
   const k = theta0.length;
@@ -144,46 +160,59 @@ function levenbergMarquardt(problem: Problem, theta0: Float64Array, skip: number
   let current = cost(problem, theta, skip);
   let mu = 1e-3;
   let iterations = 0;
-  for (; iterations < maxIterations; iterations++) {
+  while (iterations < maxIterations) {
+    iterations++;
     const { a, rows } = jacobian(problem, theta, skip, true);
     const r = new Float64Array(rows);
     r.set(pixelResiduals(problem, theta, skip));
     r.set(penalties(problem, theta), n);
     // Marquardt scaling: D = diag of the column norms of J.
     const d = new Float64Array(k);
+    let xNorm = 0;
     for (let j = 0; j < k; j++) {
       let s = 0;
       for (let i = 0; i < rows; i++) s += a[j * rows + i] ** 2;
       d[j] = Math.sqrt(s) || 1;
+      xNorm += (d[j] * theta[j]) ** 2;
     }
-    let improved = false;
-    for (let attempt = 0; attempt < 30; attempt++) {
+    xNorm = Math.sqrt(xNorm);
+    const rhs = new Float64Array(rows + k);
+    for (let i = 0; i < rows; i++) rhs[i] = -r[i];
+    for (;;) {
       // Augmented least squares: [J; √μ D] δ ≈ [−r; 0]; residual r = obs − model, so J here is ∂r/∂θ.
       const aug = new Float64Array((rows + k) * k);
       for (let j = 0; j < k; j++) {
-        for (let i = 0; i < rows; i++) aug[j * (rows + k) + i] = a[j * rows + i];
+        aug.set(a.subarray(j * rows, (j + 1) * rows), j * (rows + k));
         aug[j * (rows + k) + rows + j] = Math.sqrt(mu) * d[j];
       }
-      const rhs = new Float64Array(rows + k);
-      for (let i = 0; i < rows; i++) rhs[i] = -r[i];
       const delta = qrSolve(householderQr({ rows: rows + k, cols: k, a: aug }), rhs);
       const trial = Float64Array.from(theta, (v, j) => v + delta[j]);
       const trialCost = cost(problem, trial, skip);
-      if (trialCost < current) {
-        const gain = current - trialCost;
+      let jDeltaSq = 0;
+      for (let i = 0; i < rows; i++) {
+        let s = 0;
+        for (let j = 0; j < k; j++) s += a[j * rows + i] * delta[j];
+        jDeltaSq += s * s;
+      }
+      let dDeltaSq = 0;
+      for (let j = 0; j < k; j++) dDeltaSq += (d[j] * delta[j]) ** 2;
+      const actred = current > 0 && Number.isFinite(trialCost) ? 1 - trialCost / current : current > 0 ? -1 : 0;
+      const prered = current > 0 ? (jDeltaSq + 2 * mu * dDeltaSq) / current : 0;
+      const accepted = trialCost < current;
+      if (accepted) {
         theta = trial;
-        const previous = current;
         current = trialCost;
+      }
+      const ratio = prered > 0 ? actred / prered : 0;
+      if (Math.abs(actred) <= FTOL && prered <= FTOL && ratio <= 2) return { theta, cost: current, iterations };
+      if (accepted && actred <= FTOL && Math.sqrt(dDeltaSq) <= XTOL * xNorm) return { theta, cost: current, iterations };
+      if (accepted) {
         mu = Math.max(mu / 3, 1e-12);
-        improved = true;
-        const small = delta.every((v, j) => Math.abs(v) <= 1e-12 * Math.max(1, Math.abs(theta[j])));
-        if (gain <= 1e-14 * Math.max(previous, 1e-300) || small) return { theta, cost: current, iterations: iterations + 1 };
         break;
       }
       mu *= 4;
-      if (mu > 1e16) break;
+      if (mu > MU_CAP) return { theta, cost: current, iterations };
     }
-    if (!improved) break;
   }
   return { theta, cost: current, iterations };
 }

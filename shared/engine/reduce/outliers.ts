@@ -198,11 +198,11 @@ export class RowCleaner {
       // Second screen, exact: not an outlier even against the smallest spatial neighbour (the
       // reference is at least that, and the threshold grows with the reference). A NaN
       // neighbour makes every comparison false and falls through to the full test.
-      const [a, b, c, d] = neighbours as Float32Array[];
-      let mn = a[p];
-      const vb = b[p];
-      const vc = c[p];
-      const vd = d[p];
+      // Indexed, not destructured: this runs per candidate pixel.
+      let mn = (neighbours[0] as Float32Array)[p];
+      const vb = (neighbours[1] as Float32Array)[p];
+      const vc = (neighbours[2] as Float32Array)[p];
+      const vd = (neighbours[3] as Float32Array)[p];
       if (vb < mn) mn = vb;
       if (vc < mn) mn = vc;
       if (vd < mn) mn = vd;

@@ -71,11 +71,18 @@ export function FrameViewerRoute() {
           </span>
         }
         actions={
-          maySaveDefault && f.kind === 'signal' ? (
-            <Link to={`/instruments/${f.instrumentId}/workbench?frames=${f.id}`} className={linkButton}>
-              Open in workbench
-            </Link>
-          ) : null
+          <>
+            {f.kind === 'signal' ? (
+              <Link to={`/frames/${f.id}/spectrum`} className={linkButton}>
+                Spectrum
+              </Link>
+            ) : null}
+            {maySaveDefault && f.kind === 'signal' ? (
+              <Link to={`/instruments/${f.instrumentId}/workbench?frames=${f.id}`} className={linkButton}>
+                Open in workbench
+              </Link>
+            ) : null}
+          </>
         }
       />
       <Panel title="Frame">

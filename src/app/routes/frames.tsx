@@ -1,5 +1,5 @@
 import { useState } from 'react';
-import { useSearchParams } from 'react-router-dom';
+import { Link, useSearchParams } from 'react-router-dom';
 import type { RowSelectionState } from '@tanstack/react-table';
 import { frameSortKeys, type FrameSortKey, type ListFramesQuery } from '../../../shared/api/frames.ts';
 import { useSession } from '@/features/auth/api/get-session';
@@ -9,6 +9,7 @@ import { BulkEditForm } from '@/features/frames/components/bulk-edit-form';
 import { FrameUpload } from '@/features/frames/components/frame-upload';
 import { FramesFilters, type FramesFilterValues } from '@/features/frames/components/frames-filters';
 import { FramesTable } from '@/features/frames/components/frames-table';
+import { StartRunButton } from '@/features/runs/components/start-run-button';
 import { ErrorAlert } from '@/components/alert';
 import { SelectField } from '@/components/field';
 import { EmptyState, Loading, PageHeader, Panel } from '@/components/page';
@@ -101,6 +102,18 @@ export function FramesRoute() {
               onChange={(v) => update({ instrumentId: v.instrumentId, kind: v.kind, tag: v.tag, from: v.fromDate, to: v.toDate, q: v.q, page: undefined })}
             />
             {mayEditSome && selectedIds.length > 0 ? <BulkEditForm ids={selectedIds} onClear={() => setSelection({})} /> : null}
+            {filters.instrumentId && selectedIds.length > 0 && selectedIds.length <= 8 ? (
+              <p className="text-sm">
+                <Link className="font-medium text-accent-700 hover:underline" to={`/instruments/${filters.instrumentId}/workbench?frames=${selectedIds.join(',')}`}>
+                  Open the {selectedIds.length} selected frame{selectedIds.length === 1 ? '' : 's'} in the workbench
+                </Link>
+              </p>
+            ) : null}
+            {filters.instrumentId && selectedIds.length > 0 && uploadable.some((i) => i.id === filters.instrumentId) ? (
+              <div>
+                <StartRunButton instrumentId={filters.instrumentId} input={{ frameIds: selectedIds }} label={`Make spectra of the ${selectedIds.length} selected`} />
+              </div>
+            ) : null}
             {frames.isPending ? <Loading what="Loading frames" /> : null}
             <ErrorAlert error={frames.error} title="Could not load the frames" />
             {frames.data && frames.data.total === 0 ? <EmptyState>No frames match. Upload some above.</EmptyState> : null}

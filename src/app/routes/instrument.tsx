@@ -50,6 +50,9 @@ export function InstrumentRoute() {
             <Link to={`/instruments/${instrumentId}/members`} className={linkButton}>
               Members
             </Link>
+            <Link to={`/instruments/${instrumentId}/spectra`} className={linkButton}>
+              Spectra and drift
+            </Link>
             {canManage ? (
               <Link to={`/instruments/${instrumentId}/edit`} className={linkButton}>
                 Edit profile

@@ -5,6 +5,8 @@ import { instrumentQueryOptions } from '@/features/instruments/api/get-instrumen
 import { useVersion } from '@/features/versions/api/get-version';
 import { VersionActions } from '@/features/versions/components/version-actions';
 import { VersionHistory } from '@/features/versions/components/version-history';
+import { DraftEditor } from '@/features/versions/components/draft-editor';
+import { allowedVersionActions } from '@/features/versions/lib/version-permissions';
 import { VersionStateBadge } from '@/features/versions/components/version-state-badge';
 import { MapPlot } from '@/features/workbench/components/map-plot';
 import { PeaksTable } from '@/features/workbench/components/peaks-table';
@@ -88,6 +90,7 @@ export function VersionRoute() {
           <Panel title="Review">
             <div className="flex flex-col gap-5">
               <VersionActions version={v} actor={actor} forbidSelfApproval={instrument.data?.settings.forbidSelfApproval ?? true} />
+              {allowedVersionActions(actor, { state: v.state, authorId: v.authorId ?? '', forbidSelfApproval: true }).edit ? <DraftEditor key={v.updatedAt} version={v} /> : null}
               <VersionHistory history={v.history} />
             </div>
           </Panel>

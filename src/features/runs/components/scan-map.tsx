@@ -11,11 +11,14 @@ const FONT = '11px Fira Sans, sans-serif';
 /** Cell value in [0, 1] for the colour map and the colour bar's range in data units. */
 function normalise(map: ScanResponse['yieldMap'], scale: Scale) {
   if (scale === 'row') {
+    // Each order from its own minimum (0) to maximum (1) over the scan: a 15 % modulation fills the colour range.
     const cells = map.map((row) => {
-      const max = Math.max(0, ...row.filter((v): v is number => v !== null));
-      return row.map((v) => (v === null || !(max > 0) ? null : Math.max(0, v) / max));
+      const seen = row.filter((v): v is number => v !== null);
+      const min = Math.min(...seen);
+      const max = Math.max(...seen);
+      return row.map((v) => (v === null || !(max > min) ? null : (v - min) / (max - min)));
     });
-    return { cells, lo: 0, hi: 1, label: 'yield / order maximum' };
+    return { cells, lo: 0, hi: 1, label: 'yield, each order scaled from its minimum (0) to maximum (1)' };
   }
   const logs = map.flat().filter((v): v is number => v !== null && v > 0).map(Math.log10);
   const lo = logs.length ? Math.min(...logs) : 0;

@@ -9,6 +9,8 @@ const FONT = '11px Fira Sans';
 /**
  * A uPlot plugin that writes each order's name above its peak (uPlot draws the axes; this only
  * adds text through its draw hook, in canvas pixels, skipping labels outside the plot area).
+ * Crowded labels (weak high orders close together) are stacked on up to four levels instead of
+ * overprinting; a thin leader line joins each label to its peak.
  */
 function orderLabelsPlugin(labels: OrderLabel[]): uPlot.Plugin {
   return {
@@ -16,22 +18,34 @@ function orderLabelsPlugin(labels: OrderLabel[]): uPlot.Plugin {
       draw: (u) => {
         const { ctx } = u;
         const { left, top, width, height } = u.bbox;
+        const dpr = devicePixelRatio;
+        const lineH = 13 * dpr;
+        const gap = 3 * dpr;
         ctx.save();
-        ctx.font = `${Math.round(11 * devicePixelRatio)}px Fira Sans, sans-serif`;
+        ctx.font = `${Math.round(11 * dpr)}px Fira Sans, sans-serif`;
         ctx.textAlign = 'center';
         ctx.textBaseline = 'bottom';
-        for (const label of labels) {
-          const cx = u.valToPos(label.x, 'x', true);
-          const cy = u.valToPos(label.y, 'y', true);
-          if (!(cx >= left && cx <= left + width)) continue;
-          const y = Math.max(top + 12 * devicePixelRatio, Math.min(top + height, cy) - 4 * devicePixelRatio);
+        const placed = labels
+          .map((l) => ({ ...l, cx: u.valToPos(l.x, 'x', true), cy: u.valToPos(l.y, 'y', true), w: ctx.measureText(l.text).width }))
+          .filter((l) => l.cx >= left && l.cx <= left + width)
+          .sort((a, b) => a.cx - b.cx);
+        // Right edge and baseline of the last label on each level.
+        const levels: Array<{ right: number }> = [];
+        for (const l of placed) {
+          const peakTop = Math.min(top + height, l.cy) - 4 * dpr;
+          let level = levels.findIndex((lv) => lv.right + gap < l.cx - l.w / 2);
+          if (level === -1) level = levels.length < 4 ? levels.length : 3;
+          levels[level] = { right: l.cx + l.w / 2 };
+          const y = Math.max(top + lineH, peakTop - level * lineH);
           ctx.fillStyle = '#0f172a';
-          ctx.fillText(label.text, cx, y);
-          ctx.strokeStyle = 'rgba(15, 118, 110, 0.5)';
-          ctx.beginPath();
-          ctx.moveTo(cx, y + 1 * devicePixelRatio);
-          ctx.lineTo(cx, Math.min(top + height, cy));
-          ctx.stroke();
+          ctx.fillText(l.text, l.cx, y);
+          if (level > 0 || y < peakTop) {
+            ctx.strokeStyle = 'rgba(15, 118, 110, 0.45)';
+            ctx.beginPath();
+            ctx.moveTo(l.cx, y + 1 * dpr);
+            ctx.lineTo(l.cx, Math.min(top + height, l.cy));
+            ctx.stroke();
+          }
         }
         ctx.restore();
       },

@@ -15,7 +15,7 @@ export function DriftChart({ versions }: { versions: VersionDetail[] }) {
     const px = [0, Math.round((n - 1) / 2), n - 1];
     const rows = sorted.map((v) => wavelengthsAt(v.calibration, px));
     const base = rows[0] ?? [0, 0, 0];
-    const delta = (k: number) => rows.map((r) => (r[k] - base[k]) * 1000);
+    const delta = (k: number) => rows.map((r) => (Number.isFinite(r[k] - base[k]) ? (r[k] - base[k]) * 1000 : null));
     return { pixels: px, data: [sorted.map((v) => v.number), delta(0), delta(1), delta(2)] as uPlot.AlignedData };
   }, [versions]);
   const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(

@@ -20,7 +20,9 @@ export function VersionDiffPlot({ versions }: { versions: VersionDetail[] }) {
   const data = useMemo<uPlot.AlignedData | null>(() => {
     if (!a || !b) return null;
     const d = diffVersions(a.calibration, b.calibration);
-    return [Array.from(d.pixel), Array.from(d.shiftPx, (v) => (Number.isFinite(v) ? v : null)), Array.from(d.shiftMeV)];
+    // A map that cannot be evaluated somewhere (NaN) leaves a gap rather than a fake value.
+    const gap = (v: number) => (Number.isFinite(v) ? v : null);
+    return [Array.from(d.pixel), Array.from(d.shiftPx, gap), Array.from(d.shiftMeV, gap)];
   }, [a, b]);
   const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
     () => ({

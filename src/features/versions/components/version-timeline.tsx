@@ -34,7 +34,7 @@ export function VersionTimeline({ versions }: { versions: Version[] }) {
           (u: uPlot) => {
             const ctx = u.ctx;
             const ratio = window.devicePixelRatio || 1;
-            const barHalf = Math.max(5, Math.min(12 * ratio, (u.bbox.height / (maxNumber + 1)) * 0.22));
+            const barHalf = Math.max(6 * ratio, Math.min(11 * ratio, (u.bbox.height / (maxNumber + 1)) * 0.38));
             ctx.save();
             ctx.beginPath();
             ctx.rect(u.bbox.left, u.bbox.top, u.bbox.width, u.bbox.height);
@@ -52,6 +52,7 @@ export function VersionTimeline({ versions }: { versions: Version[] }) {
               ctx.fillStyle = v.state === 'draft' || v.state === 'withdrawn' ? '#0f172a' : '#ffffff';
               ctx.font = `500 ${11 * ratio}px Fira Sans, sans-serif`;
               ctx.textBaseline = 'middle';
+              ctx.textAlign = 'left';
               ctx.fillText(`v${v.number} ${style.label}${Number.isFinite(ends[i]) ? '' : ' →'}`, Math.max(x0, u.bbox.left) + 5 * ratio, y);
             });
             // "now" marker
@@ -71,7 +72,7 @@ export function VersionTimeline({ versions }: { versions: Version[] }) {
   }, [versions]);
   return (
     <div>
-      <UplotChart options={options} data={data} heightPx={Math.max(150, 70 + versions.length * 44)} label="Calibration versions on a timeline" testId="version-timeline" />
+      <UplotChart options={options} data={data} heightPx={Math.max(160, 80 + versions.length * 52)} label="Calibration versions on a timeline" testId="version-timeline" />
       <ul className="mt-2 flex flex-wrap gap-3 text-xs text-slate-600" aria-label="Legend">
         {Object.entries(STATE_STYLE).map(([state, s]) => (
           <li key={state} className="flex items-center gap-1">

@@ -1,4 +1,5 @@
-import { SelectField, TextField } from '@/components/field';
+import { SelectField } from '@/components/field';
+import { NumberField } from '@/components/number-field';
 import { COLOUR_MAPS, type ColourMapName } from '@/lib/frame-worker/colour-maps';
 import type { DisplayScaling } from '@/lib/frame-worker/scaling';
 
@@ -28,10 +29,6 @@ export interface DisplayControlsProps {
 
 /** Scaling, colour map and contrast limits (a percentile preset, or typed limits). */
 export function DisplayControls({ settings, onPreset, onChange }: DisplayControlsProps) {
-  const number = (value: string, fallback: number) => {
-    const n = Number(value);
-    return value.trim() !== '' && Number.isFinite(n) ? n : fallback;
-  };
   return (
     <div className="grid grid-cols-2 gap-3 sm:grid-cols-5">
       <SelectField
@@ -56,18 +53,8 @@ export function DisplayControls({ settings, onPreset, onChange }: DisplayControl
         onChange={(e) => onPreset(e.target.value)}
         options={[...Object.keys(CONTRAST_PRESETS).map((k) => ({ value: k, label: k })), { value: 'manual', label: 'manual' }]}
       />
-      <TextField
-        label="Low limit (counts)"
-        type="number"
-        value={String(Number(settings.loCounts.toPrecision(6)))}
-        onChange={(e) => onChange({ ...settings, preset: 'manual', loCounts: number(e.target.value, settings.loCounts) })}
-      />
-      <TextField
-        label="High limit (counts)"
-        type="number"
-        value={String(Number(settings.hiCounts.toPrecision(6)))}
-        onChange={(e) => onChange({ ...settings, preset: 'manual', hiCounts: number(e.target.value, settings.hiCounts) })}
-      />
+      <NumberField label="Low limit (counts)" value={settings.loCounts} format={(v) => String(Number(v.toPrecision(6)))} onCommit={(loCounts) => onChange({ ...settings, preset: 'manual', loCounts })} />
+      <NumberField label="High limit (counts)" value={settings.hiCounts} format={(v) => String(Number(v.toPrecision(6)))} onCommit={(hiCounts) => onChange({ ...settings, preset: 'manual', hiCounts })} />
     </div>
   );
 }

@@ -1,5 +1,5 @@
 import { Button } from '@/components/button';
-import { TextField } from '@/components/field';
+import { NumberField } from '@/components/number-field';
 import { editorActions, useEditor, type EditorStore, type EditorTool } from '../lib/editor-store.ts';
 import { overlappingBackground } from '../lib/regions.ts';
 
@@ -26,7 +26,6 @@ export function RegionPanel({ store, editable, onSaveFrame, onSaveInstrument, sa
   const tool = useEditor(store, (s) => s.tool);
   const dirty = useEditor(store, (s) => s.dirty);
   const overlaps = overlappingBackground(regions);
-  const num = (value: string) => (value.trim() === '' ? Number.NaN : Number(value));
 
   return (
     <div className="flex flex-col gap-4">
@@ -78,27 +77,21 @@ export function RegionPanel({ store, editable, onSaveFrame, onSaveInstrument, sa
         </p>
       ) : null}
       <div className="grid grid-cols-2 gap-3">
-        <TextField
+        <NumberField
           label="Tilt (px per px)"
-          type="number"
           step="0.001"
           disabled={!editable}
-          value={String(Number(regions.lineShape.tiltPxPerPx.toFixed(5)))}
-          onChange={(e) => {
-            const v = num(e.target.value);
-            if (Number.isFinite(v)) store.setState(editorActions.setLineShape({ ...regions.lineShape, tiltPxPerPx: v }));
-          }}
+          value={regions.lineShape.tiltPxPerPx}
+          format={(v) => String(Number(v.toFixed(5)))}
+          onCommit={(v) => store.setState(editorActions.setLineShape({ ...store.getState().regions.lineShape, tiltPxPerPx: v }))}
         />
-        <TextField
+        <NumberField
           label="Curvature (px per px²)"
-          type="number"
           step="0.00001"
           disabled={!editable}
-          value={String(Number(regions.lineShape.curvaturePxPerPx2.toExponential(3)))}
-          onChange={(e) => {
-            const v = num(e.target.value);
-            if (Number.isFinite(v)) store.setState(editorActions.setLineShape({ ...regions.lineShape, curvaturePxPerPx2: v }));
-          }}
+          value={regions.lineShape.curvaturePxPerPx2}
+          format={(v) => String(Number(v.toExponential(3)))}
+          onCommit={(v) => store.setState(editorActions.setLineShape({ ...store.getState().regions.lineShape, curvaturePxPerPx2: v }))}
         />
       </div>
       <p className="text-xs text-slate-500">

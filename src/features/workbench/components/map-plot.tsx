@@ -14,7 +14,7 @@ export function MapPlot({ calibration }: { calibration: Calibration }) {
     const pixels = Array.from({ length: n }, (_, i) => ((calibration.pixelCount - 1) * i) / (n - 1));
     const { wavelengthNm, wavelengthSigmaNm } = evaluateCalibration(calibration, pixels);
     const span = Math.abs(wavelengthNm[n - 1] - wavelengthNm[0]) || 1;
-    const maxSigma = Math.max(...wavelengthSigmaNm);
+    const maxSigma = Math.max(0, ...Array.from(wavelengthSigmaNm).filter(Number.isFinite));
     // Exaggerate the band to about 3 % of the plotted range so it is visible; the legend says by how much.
     const scale = maxSigma > 0 ? Math.max(1, Math.round((0.03 * span) / maxSigma)) : 1;
     const points = new Map(calibration.points.map((p) => [Math.round(p.pixel), p.wavelengthNm * p.diffractionOrder]));
@@ -32,7 +32,8 @@ export function MapPlot({ calibration }: { calibration: Calibration }) {
       const point = calibration.points.find((p) => Math.abs(p.pixel - x) < 1e-9);
       marks.push(point ? (points.get(Math.round(point.pixel)) ?? null) : null);
     }
-    return { data: [xs, lambda, upper, lower, marks] as uPlot.AlignedData, bandScale: scale };
+    const gap = (v: number | null) => (v !== null && Number.isFinite(v) ? v : null);
+    return { data: [xs, lambda.map(gap), upper.map(gap), lower.map(gap), marks] as uPlot.AlignedData, bandScale: scale };
   }, [calibration]);
 
   const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
