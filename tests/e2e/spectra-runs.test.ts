@@ -284,12 +284,24 @@ describe('spectra, runs, drift and notices in the browser', () => {
     await screenshot(page, 'spectra-spectrum-wavelength');
     await page.getByTestId('orders-table').screenshot({ path: join('test-results', 'screenshots', 'spectra-orders-table.png') });
 
+    // The URL is the stable link: "Copy link" puts exactly this page's address on the clipboard.
+    await browser.context.grantPermissions(['clipboard-read', 'clipboard-write'], { origin: base });
+    await page.getByRole('button', { name: 'Copy link' }).click();
+    await page.getByText('Link copied.').waitFor();
+    expect(await page.evaluate(() => navigator.clipboard.readText())).toBe(page.url());
+
     await page.getByRole('radio', { name: 'Photon energy (eV)' }).click();
     await expect.poll(() => chart.getAttribute('data-axis')).toBe('energy');
     expect(page.url()).toContain('axis=energy');
     expect(await chart.getByRole('img').getAttribute('aria-label')).toContain('photon energy (eV');
     await page.waitForTimeout(300);
     await screenshot(page, 'spectra-spectrum-energy');
+    await page.getByLabel('Log intensity').check();
+    await expect.poll(() => chart.getAttribute('data-log')).toBe('true');
+    expect(page.url()).toContain('scale=log');
+    await page.waitForTimeout(300);
+    await screenshot(page, 'spectra-spectrum-energy-log');
+    await page.getByLabel('Log intensity').uncheck();
 
     // CSV export: the file's numbers are the API's numbers, exactly (shortest round-trip form).
     const [csvDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export CSV' }).click()]);
@@ -341,10 +353,13 @@ describe('spectra, runs, drift and notices in the browser', () => {
     await page.getByRole('button', { name: 'Make spectra of the 24 selected' }).click();
     await page.waitForURL(/\/runs\//);
     const runId = new URL(page.url()).pathname.split('/')[2]!;
-    await page.getByTestId('run-progress').waitFor();
+    const progress = page.getByTestId('run-progress');
+    await progress.waitFor();
+    // Catch the bar part-way (the page polls the run every second while it is queued or running).
+    await expect.poll(async () => Number(await progress.getAttribute('aria-valuenow')), { timeout: 60_000, interval: 100 }).toBeGreaterThan(0);
     const stateAtShot = await page.getByTestId('run-state').textContent();
     await screenshot(page, 'spectra-run-in-progress');
-    expect(['queued', 'running', 'done']).toContain(stateAtShot);
+    expect(['running', 'done']).toContain(stateAtShot);
 
     await expect.poll(() => page.getByTestId('run-state').textContent(), { timeout: 100_000, interval: 500 }).toBe('done');
     expect(await page.getByTestId('run-progress').getAttribute('aria-valuenow')).toBe('24');
@@ -443,6 +458,20 @@ describe('spectra, runs, drift and notices in the browser', () => {
     expect(await chart.getAttribute('data-flagged')).toBe('3');
     await page.waitForTimeout(300);
     await screenshot(page, 'spectra-drift');
+    // Students see the threshold but may not set it; the owner sets it on the same page.
+    expect(await page.getByRole('form', { name: 'Drift threshold' }).count()).toBe(0);
+    await signOut(page);
+    await signIn(page, base, OWNER);
+    await page.goto(`${base}/instruments/${instrumentId}/spectra`);
+    const thresholdForm = page.getByRole('form', { name: 'Drift threshold' });
+    await thresholdForm.getByLabel('Threshold (px)').fill('-1');
+    await thresholdForm.getByRole('button', { name: 'Save threshold' }).click();
+    await thresholdForm.getByText('driftThreshold.px must be ≥ 0').waitFor();
+    await thresholdForm.getByLabel('Threshold (px)').fill('2.5');
+    await thresholdForm.getByRole('button', { name: 'Save threshold' }).click();
+    await page.getByText('Saved; new spectra are flagged with it.').waitFor();
+    const instrument = await api<{ settings: { driftThreshold?: { sigma: number; px: number } } }>('owner', 'GET', paths.instrument(instrumentId));
+    expect(instrument.body.settings.driftThreshold).toEqual({ sigma: 3, px: 2.5 });
     await signOut(page);
 
     // Outbox (site admins): one drift notice for the episode, and the other notices of the story.

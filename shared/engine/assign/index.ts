@@ -243,6 +243,18 @@ function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
   return { ctx, original: usable.map((u) => u.index), tol, notes };
 }
 
+/** Whether the nonzero labels run strictly one way along the pixels (down when wavelength increases with pixel). */
+function monotonicLabels(harmonic: Int32Array, wavelengthIncreasesWithPixel: boolean): boolean {
+  let previous = 0;
+  for (let i = 0; i < harmonic.length; i++) {
+    const q = harmonic[i];
+    if (q <= 0) continue;
+    if (previous > 0 && (wavelengthIncreasesWithPixel ? q >= previous : q <= previous)) return false;
+    previous = q;
+  }
+  return true;
+}
+
 /** Harmonics that peak `i` can be, given the realignment ranges (for the seeds). */
 function candidateHarmonics(ctx: SearchContext, i: number, tol: number): [number, number] {
   const lambda0Hi = ctx.model.nominal[P_DRIVER] / (1 - tol / 2);
@@ -521,6 +533,9 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
         if ([...ctx.pins.entries()].some(([p, q]) => (p === a && q !== qa) || (p === b && q !== qb))) continue;
         harmonic[a] = qa;
         harmonic[b] = qb;
+        // Pins and the pair must read as one comb: first-order harmonics strictly monotonic in pixel
+        // (a pin beside a pair that repeats or reverses its harmonic is no labelling at all).
+        if (ctx.pins.size > 0 && !monotonicLabels(harmonic, incr)) continue;
         let seedParams: Float64Array;
         let seedCost: number;
         if (ctx.angleKnown) {
@@ -582,14 +597,16 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
     // Seeds that differ only by a uniform shift of their implied harmonics are slips of one
     // pattern: grow the most plausible one; the slips of the leading labelling are fitted in
     // earnest afterwards (shiftedRivals).
-    const pattern = patternKey(seed.implied);
+    // With pins a shifted copy is not the same hypothesis (the pins break the shift symmetry).
+    const pattern = ctx.pins.size > 0 ? seed.key + Array.from(seed.harmonic).join('/') : patternKey(seed.implied);
     if (grownPatterns.has(pattern)) continue;
-    grownPatterns.add(pattern);
     // A seed whose implied labels a grown labelling already carries would grow into that labelling.
     if (grownLabellings.some((h) => seed.implied.every(([i, q]) => h[i] === q))) continue;
     grown++;
     const lab = grow(ctx, seed.harmonic, seed.start);
     if (!lab) continue;
+    // Only a seed that grew stands for its pattern: a failed one must not hide its shifted copies.
+    grownPatterns.add(pattern);
     grownLabellings.push(lab.harmonic);
     let ok = true;
     for (const [p, q] of ctx.pins) if (lab.harmonic[p] !== q) ok = false;

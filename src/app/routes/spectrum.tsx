@@ -22,6 +22,7 @@ export function SpectrumRoute() {
   const versionParam = Number(params.get('version'));
   const version = Number.isInteger(versionParam) && versionParam >= 1 ? versionParam : undefined;
   const axis: SpectrumAxis = params.get('axis') === 'energy' ? 'energy' : 'wavelength';
+  const logIntensity = params.get('scale') === 'log';
   const frame = useFrame(frameId);
   const versions = useVersions(frame.data?.instrumentId ?? '');
   const spectrum = useSpectrum(frameId, version);
@@ -75,7 +76,13 @@ export function SpectrumRoute() {
       />
       <div className="flex flex-col gap-6">
         <div className="flex flex-wrap items-center justify-between gap-4 print:hidden">
-          <AxisToggle value={axis} onChange={(a) => set('axis', a === 'energy' ? 'energy' : undefined)} />
+          <span className="flex flex-wrap items-center gap-4">
+            <AxisToggle value={axis} onChange={(a) => set('axis', a === 'energy' ? 'energy' : undefined)} />
+            <label className="flex items-center gap-2 text-sm text-slate-700">
+              <input type="checkbox" className="size-4 accent-teal-700" checked={logIntensity} onChange={(e) => set('scale', e.target.checked ? 'log' : undefined)} />
+              Log intensity
+            </label>
+          </span>
           <label className="flex items-center gap-2 text-sm text-slate-700">
             Calibration
             <select
@@ -112,7 +119,7 @@ export function SpectrumRoute() {
         {spectrum.data ? (
           <>
             <CalibrationUsed spectrum={spectrum.data} />
-            <SpectrumPanels spectrum={spectrum.data} axis={axis} />
+            <SpectrumPanels spectrum={spectrum.data} axis={axis} logIntensity={logIntensity} />
           </>
         ) : null}
       </div>

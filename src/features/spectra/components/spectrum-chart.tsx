@@ -56,20 +56,22 @@ function orderLabelsPlugin(labels: OrderLabel[]): uPlot.Plugin {
 export interface SpectrumChartProps {
   spectrum: AppliedSpectrum;
   axis: SpectrumAxis;
+  /** Logarithmic intensity axis (weak high orders next to the plateau); values ≤ 0 are left out. */
+  logIntensity?: boolean;
   heightPx?: number;
 }
 
 /** The spectrum on the chosen axis with its 1-σ band and the harmonic labels on the detected peaks. */
-export function SpectrumChart({ spectrum, axis, heightPx = 320 }: SpectrumChartProps) {
+export function SpectrumChart({ spectrum, axis, logIntensity = false, heightPx = 320 }: SpectrumChartProps) {
   const series = useMemo(() => axisSeries(spectrum, axis), [spectrum, axis]);
   const labels = useMemo(() => orderLabels(spectrum, axis), [spectrum, axis]);
-  const data = useMemo<uPlot.AlignedData>(
-    () => [series.x, series.y, series.y.map((v, i) => v + series.ySigma[i]), series.y.map((v, i) => v - series.ySigma[i])],
-    [series],
-  );
+  const data = useMemo<uPlot.AlignedData>(() => {
+    const keep = (v: number) => (logIntensity && !(v > 0) ? null : v);
+    return [series.x, series.y.map(keep), series.y.map((v, i) => keep(v + series.ySigma[i])), series.y.map((v, i) => keep(v - series.ySigma[i]))];
+  }, [series, logIntensity]);
   const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
     () => ({
-      scales: { x: { time: false } },
+      scales: { x: { time: false }, y: logIntensity ? { distr: 3 } : {} },
       axes: [
         { label: series.xLabel, font: FONT, labelFont: '12px Fira Sans' },
         { label: series.yLabel, size: 70, font: FONT, labelFont: '12px Fira Sans' },
@@ -83,10 +85,10 @@ export function SpectrumChart({ spectrum, axis, heightPx = 320 }: SpectrumChartP
       bands: [{ series: [2, 3], fill: 'rgba(45, 212, 191, 0.18)' }],
       plugins: [orderLabelsPlugin(labels)],
     }),
-    [series.xLabel, series.yLabel, axis, labels],
+    [series.xLabel, series.yLabel, axis, labels, logIntensity],
   );
   return (
-    <div data-testid="spectrum-chart" data-axis={axis} data-labels={labels.map((l) => l.text).join(' ')}>
+    <div data-testid="spectrum-chart" data-axis={axis} data-log={logIntensity} data-labels={labels.map((l) => l.text).join(' ')}>
       <UplotChart options={options} data={data} heightPx={heightPx} label={`Spectrum against ${series.xLabel} with harmonic labels`} />
     </div>
   );

@@ -26,11 +26,11 @@ export function CalibrationUsed({ spectrum }: { spectrum: SpectrumResponse }) {
 }
 
 /** The chart, the per-order table, drift and the engine's notes for one spectrum. */
-export function SpectrumPanels({ spectrum, axis }: { spectrum: SpectrumResponse; axis: SpectrumAxis }) {
+export function SpectrumPanels({ spectrum, axis, logIntensity = false }: { spectrum: SpectrumResponse; axis: SpectrumAxis; logIntensity?: boolean }) {
   return (
     <>
       <Panel title="Spectrum">
-        <SpectrumChart spectrum={spectrum} axis={axis} />
+        <SpectrumChart spectrum={spectrum} axis={axis} logIntensity={logIntensity} />
         {spectrum.notes.length ? (
           <ul className="mt-3 list-disc pl-5 text-xs text-slate-600">
             {spectrum.notes.map((n) => (
