@@ -15,7 +15,10 @@ import { instruments, memberships, users } from '../db/schema/index.ts';
 import { hashPassword } from '../auth/password.ts';
 import { loadConfig } from '../config.ts';
 import { frameStoreFromConfig } from '../storage/from-config.ts';
-import { seedDemoStories } from './demo/seed-story.ts';
+import { seedDemoSpectra, seedDemoStories } from './demo/seed-story.ts';
+import { createMailer } from '../mail/mailer.ts';
+import { startMailSink } from '../mail/sink.ts';
+import { pgBossQueue, startBoss } from '../modules/runs/queue.ts';
 
 /** The fixed demo sign-ins (the README lists them). */
 export const demoAccounts = [
@@ -129,10 +132,21 @@ async function main(): Promise<void> {
     const config = loadConfig();
     const { store, close } = frameStoreFromConfig({ frameStorage: config.frameStorage, s3: config.s3, localDir: config.frameStorageDir });
     const started = Date.now();
+    // Notices raised while seeding (drift, review requests) go through a sink of our own, into the Outbox.
+    const sink = config.mailSink ? await startMailSink(db, { host: '127.0.0.1', port: 0 }) : undefined;
+    const mailer = createMailer(sink ? `smtp://127.0.0.1:${sink.port}` : config.smtpUrl, config.mailFrom, config.mailSink);
+    const boss = await startBoss({ databaseUrl, expireInSeconds: config.applyJobExpireS, maintenanceIntervalSeconds: config.queueMaintenanceS });
     try {
       const story = await seedDemoStories({ db, store });
-      console.log(`Seeded the invented "Lindqvist Attosecond Lab" demo: added ${added.users} users, ${added.instruments} instruments, ${added.memberships} memberships, ${story.frames} simulated frames, ${story.versions} calibration versions (${((Date.now() - started) / 1000).toFixed(1)} s).`);
+      const work = await seedDemoSpectra({ db, store, mailer, appUrl: config.appUrl, queue: pgBossQueue(boss, config.applyJobExpireS) }, story.frameIds);
+      console.log(
+        `Seeded the invented "Lindqvist Attosecond Lab" demo: added ${added.users} users, ${added.instruments} instruments, ${added.memberships} memberships, ` +
+          `${story.frames} simulated frames, ${story.versions} calibration versions, ${work.spectra} spectra, a run of ${work.runFrames} scan frames queued (${((Date.now() - started) / 1000).toFixed(1)} s).`,
+      );
     } finally {
+      await boss.stop({ graceful: true, wait: true });
+      mailer.close();
+      await sink?.close();
       close();
     }
     console.log('Demo sign-ins (invented demo accounts):');

@@ -11,7 +11,13 @@ import { uploadFieldsSchema } from '../../../shared/api/frames.ts';
 import { workbenchRunSchema } from '../../../shared/api/workbench.ts';
 import { encodeTiff, simulateFrame } from '../../../shared/engine/simulate/index.ts';
 import type { Db } from '../../db/client.ts';
-import { frames, instruments, users } from '../../db/schema/index.ts';
+import { frames, instruments, spectra, users } from '../../db/schema/index.ts';
+import type { Mailer } from '../../mail/mailer.ts';
+import type { ApplyQueue } from '../../modules/runs/queue.ts';
+import { createRun } from '../../modules/runs/service.ts';
+import { getSpectrum } from '../../modules/spectra/service.ts';
+import { dbSources } from '../../modules/spectra/sources.ts';
+import { createRunSchema } from '../../../shared/api/runs.ts';
 import type { FrameStore } from '../../storage/frame-store.ts';
 import { decodeUpload } from '../../modules/frames/decode.ts';
 import { storeUploads } from '../../modules/frames/service.ts';
@@ -113,4 +119,39 @@ export async function seedDemoStories(deps: { db: Db; store: FrameStore }): Prom
     total.frameIds.set(story.instrumentName, r.frameIds);
   }
   return total;
+}
+
+/** Who the demo's spectra are made by, and with which services (mail into the sink, the apply queue). */
+export interface DemoSpectraDeps {
+  db: Db;
+  store: FrameStore;
+  mailer: Mailer;
+  appUrl: string;
+  queue: ApplyQueue;
+}
+
+/**
+ * The demo student's everyday work: spectra of the daily frames (the one after the camera move
+ * raises the drift flag, and its notice goes to the owners) and a run over the 24-frame delay
+ * scan, queued for the server's workers (it finishes within seconds of `npm start`). Skipped
+ * when the XUV instrument already has spectra.
+ */
+export async function seedDemoSpectra(deps: DemoSpectraDeps, frameIds: Map<string, Map<string, string>>): Promise<{ spectra: number; runFrames: number }> {
+  const xuv = demoStories()[0]!;
+  const ids = frameIds.get(xuv.instrumentName);
+  if (!ids) return { spectra: 0, runFrames: 0 };
+  const [instrument] = await deps.db.select({ id: instruments.id }).from(instruments).where(eq(instruments.name, xuv.instrumentName));
+  const already = await deps.db.select({ id: spectra.id }).from(spectra).innerJoin(frames, eq(frames.id, spectra.frameId)).where(eq(frames.instrumentId, instrument!.id)).limit(1);
+  if (already.length > 0) return { spectra: 0, runFrames: 0 };
+  const student = await sessionUser(deps.db, 'student@orderly.test');
+  const spectraDeps = { db: deps.db, store: deps.store, sources: dbSources, mailer: deps.mailer, appUrl: deps.appUrl };
+  let made = 0;
+  for (const name of ['daily-2026-11-10', 'daily-2026-11-16', 'daily-2026-11-25']) {
+    const frameId = ids.get(name);
+    if (!frameId) continue;
+    await getSpectrum(spectraDeps, student, frameId);
+    made += 1;
+  }
+  const run = await createRun({ ...spectraDeps, queue: deps.queue }, student, instrument!.id, createRunSchema.parse({ scanVariable: 'phaseDelayRad' }));
+  return { spectra: made, runFrames: run.total };
 }

@@ -600,12 +600,13 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
     // With pins a shifted copy is not the same hypothesis (the pins break the shift symmetry).
     const pattern = ctx.pins.size > 0 ? seed.key + Array.from(seed.harmonic).join('/') : patternKey(seed.implied);
     if (grownPatterns.has(pattern)) continue;
+    if (ctx.pins.size === 0) grownPatterns.add(pattern);
     // A seed whose implied labels a grown labelling already carries would grow into that labelling.
     if (grownLabellings.some((h) => seed.implied.every(([i, q]) => h[i] === q))) continue;
     grown++;
     const lab = grow(ctx, seed.harmonic, seed.start);
     if (!lab) continue;
-    // Only a seed that grew stands for its pattern: a failed one must not hide its shifted copies.
+    // With pins, only a seed that grew stands for its pattern: a failed one must not hide the others.
     grownPatterns.add(pattern);
     grownLabellings.push(lab.harmonic);
     let ok = true;

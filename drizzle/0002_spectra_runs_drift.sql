@@ -1,3 +1,0 @@
-ALTER TABLE "spectra" ADD CONSTRAINT "spectra_frame_id_frames_id_fk" FOREIGN KEY ("frame_id") REFERENCES "public"."frames"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
-ALTER TABLE "spectra" ADD CONSTRAINT "spectra_version_id_calibration_versions_id_fk" FOREIGN KEY ("version_id") REFERENCES "public"."calibration_versions"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
-ALTER TABLE "run_items" ADD CONSTRAINT "run_items_frame_id_frames_id_fk" FOREIGN KEY ("frame_id") REFERENCES "public"."frames"("id") ON DELETE cascade ON UPDATE no action;
