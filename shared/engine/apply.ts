@@ -20,6 +20,12 @@ export interface ApplyOptions {
   toleranceSigma?: number;
   /** …but never farther than this fraction of the local harmonic spacing. @default 0.3 */
   maxSpacingFraction?: number;
+  /**
+   * Parity of the comb in this frame, when it differs from the calibration's: a two-colour frame
+   * ('all') calibrated with a single-colour version ('odd') still has its even orders labelled.
+   * @default the calibration's parity
+   */
+  parity?: 'odd' | 'all';
 }
 
 export interface AppliedOrder {
@@ -77,7 +83,9 @@ function resolveOptions(options: ApplyOptions | undefined) {
     maxDiffractionOrder: options?.maxDiffractionOrder ?? 2,
     toleranceSigma: options?.toleranceSigma ?? 3,
     maxSpacingFraction: options?.maxSpacingFraction ?? 0.3,
+    parity: options?.parity,
   };
+  if (o.parity !== undefined && o.parity !== 'odd' && o.parity !== 'all') throw new EngineError('invalid_input', `parity must be 'odd' or 'all', got ${String(o.parity)}.`);
   if (!(o.minTransmission > 0 && o.minTransmission < 1)) throw new EngineError('invalid_input', `minTransmission must lie in (0, 1), got ${o.minTransmission}.`);
   if (!(Number.isInteger(o.maxDiffractionOrder) && o.maxDiffractionOrder >= 1)) throw new EngineError('invalid_input', `maxDiffractionOrder must be a whole number ≥ 1, got ${o.maxDiffractionOrder}.`);
   if (!(o.toleranceSigma > 0) || !(o.maxSpacingFraction > 0 && o.maxSpacingFraction <= 0.5)) throw new EngineError('invalid_input', 'toleranceSigma must be > 0 and maxSpacingFraction in (0, 0.5].');
@@ -103,8 +111,8 @@ function at(values: Float64Array, pixel: number): number {
   return n === 1 ? values[0] : values[i] * (1 - f) + values[i + 1] * f;
 }
 
-function predictOrders(cal: Calibration, lambdaMin: number, lambdaMax: number, sigmaNm: Float64Array, slope: Float64Array, maxOrder: number, pixelCount: number): Prediction[] {
-  const step = cal.parity === 'odd' ? 2 : 1;
+function predictOrders(cal: Calibration, parity: 'odd' | 'all', lambdaMin: number, lambdaMax: number, sigmaNm: Float64Array, slope: Float64Array, maxOrder: number, pixelCount: number): Prediction[] {
+  const step = parity === 'odd' ? 2 : 1;
   const out: Prediction[] = [];
   for (let m = 1; m <= maxOrder; m++) {
     // q such that m·driver/q lies in the detector's first-order range.
@@ -144,6 +152,39 @@ function matchPeaks(predictions: Prediction[], peaks: readonly Peak[], tolerance
     usedPeaks.add(pair.peak);
   }
   return byPrediction;
+}
+
+/** Fewest first-order lines that must match before images of higher orders are labelled. */
+const MIN_FIRST_ORDER_FOR_HIGHER = 3;
+
+/**
+ * Removes higher-order labels the first-order comb does not support (common practice for a
+ * grating used in its design order: higher-order images are weaker than the first-order lines).
+ * An m ≥ 2 label needs at least three matched first-order lines — without them the calibration
+ * does not fit this frame (a moved camera, another setup) and a peak that happens to sit on a
+ * predicted m = 2 position says nothing — and it must not be brighter than the brightest
+ * matched first-order line. Mutates `matches`; returns a note when labels were withheld.
+ */
+function dropImplausibleHigherOrders(predictions: Prediction[], matches: Map<number, number>, peaks: readonly Peak[]): { reason?: string } {
+  let firstOrder = 0;
+  let brightestFirst = 0;
+  for (const [a, b] of matches) {
+    if (predictions[a].diffractionOrder !== 1) continue;
+    firstOrder++;
+    brightestFirst = Math.max(brightestFirst, peaks[b].area);
+  }
+  let withheld = 0;
+  for (const [a, b] of [...matches]) {
+    if (predictions[a].diffractionOrder === 1) continue;
+    if (firstOrder < MIN_FIRST_ORDER_FOR_HIGHER || peaks[b].area > brightestFirst) {
+      matches.delete(a);
+      withheld++;
+    }
+  }
+  if (withheld === 0) return {};
+  return firstOrder < MIN_FIRST_ORDER_FOR_HIGHER
+    ? { reason: `Only ${firstOrder} first-order line(s) sit where this calibration predicts them, so ${withheld} peak(s) on predicted higher-order positions are left unlabelled: the calibration may not fit this frame (check the drift).` }
+    : { reason: `${withheld} peak(s) on predicted higher-order positions are brighter than every first-order line and are left unlabelled.` };
 }
 
 /** Product transmission of the filters at one photon energy; NaN outside the tables. */
@@ -216,8 +257,10 @@ export function applyCalibration(lineout: Lineout, peaks: readonly Peak[], cal: 
 
   const orders: AppliedOrder[] = [];
   if (lambdaMax > 0) {
-    const predictions = predictOrders(cal, lambdaMin, lambdaMax, wavelengthSigmaNm, slope, o.maxDiffractionOrder, n);
+    const predictions = predictOrders(cal, o.parity ?? cal.parity, lambdaMin, lambdaMax, wavelengthSigmaNm, slope, o.maxDiffractionOrder, n);
     const matches = matchPeaks(predictions, peaks, o.toleranceSigma, o.maxSpacingFraction);
+    const dropped = dropImplausibleHigherOrders(predictions, matches, peaks);
+    if (dropped.reason) notes.push(dropped.reason);
     predictions.forEach((pr, a) => {
       const peakIndex = matches.get(a);
       // Higher-order images are reported only when seen; every first-order line in range is.

@@ -132,9 +132,9 @@ function fitMap(
     // The start is the assigner's own least-squares geometry for these very points (searched from
     // several starts there), so extra restarts only repeat that search.
     restarts: 0,
-    // From that start Gauss–Newton converges in a handful of steps; the cap bounds the
-    // leave-one-out refits (one per point) that would otherwise polish to 1e-14 relative.
-    maxIterations: 25,
+    // From that start the fit converges in tens of steps; leave-one-out comes from the leverages
+    // of the one fit (MINPACK-style stopping), so the default iteration cap costs little.
+    maxIterations: 200,
     free,
     bounds: {
       detectorAngleDeg: [g.detectorAngleDeg - 2, g.detectorAngleDeg + 2],

@@ -98,7 +98,7 @@ async function compute(deps: SpectraDeps, frame: FrameFacts, version: VersionFac
       page: frame.page,
       calibrationJson: version.calibration,
       regions: regions ? { signal: regions.signal, background: regions.background, lineShape: regions.lineShape } : undefined,
-      applyOptions: filterCorrection ? { filterCorrection: true } : undefined,
+      applyOptions: { ...(filterCorrection ? { filterCorrection: true } : {}), ...(frame.parity ? { parity: frame.parity } : {}) },
     });
   } catch (error) {
     engineFailure(error);

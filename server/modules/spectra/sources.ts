@@ -19,6 +19,8 @@ export interface FrameFacts {
   regions: Regions | null;
   scanVariable: string | null;
   scanValue: number | null;
+  /** The frame's own parity ('all' for a two-colour frame), when recorded; overrides the calibration's when labelling. */
+  parity: 'odd' | 'all' | null;
 }
 
 export interface VersionFacts {
@@ -81,6 +83,7 @@ function toFacts(row: FrameRow): FrameFacts {
     regions: row.regions ?? null,
     scanVariable: row.scanVariable,
     scanValue: row.scanValue,
+    parity: row.parity ?? null,
   };
 }
 

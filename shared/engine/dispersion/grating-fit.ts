@@ -76,6 +76,10 @@ export interface GratingMapFit {
   /** False when the free parameters are nearly degenerate (condition number > 1e8). */
   wellConditioned: boolean;
   iterations: number;
+  /** Passes of the forward model over the points in the fit from the starts (Jacobian columns count two). */
+  evaluations: number;
+  /** Points whose leave-one-out residual came from an exact refit. */
+  leaveOneOutRefits: number;
   /** How many starts were tried and which won (0 = the given start). */
   starts: number;
   bestStart: number;
@@ -160,29 +164,42 @@ function jacobian(problem: Problem, theta: Float64Array, skip: number, withPenal
  * Stopping rule, after MINPACK lmder (Moré, Garbow & Hillstrom, "User Guide for MINPACK-1",
  * ANL-80-74, 1980, §2.3 and lmder's info = 1, 2): with actred = 1 − χ²_trial/χ² and the linear
  * model's predicted reduction prered = (‖Jδ‖² + 2μ‖Dδ‖²)/χ², stop when |actred| ≤ FTOL and
- * prered ≤ FTOL (then ‖Jδ‖ ≤ √FTOL·‖r‖: the step moves the fit by ~1e-5 of its residual norm, far
- * inside the parameter uncertainties), tested on rejected trials too, so that a fit already at its
- * optimum stops after one trial instead of raising μ ~30 times; or when an accepted step is tiny
- * against the parameters, ‖Dδ‖ ≤ XTOL·‖Dθ‖ (D = Jacobian column norms; as a standard error
- * σ_j ≥ 1/D_j, each |δ_j|/σ_j ≤ XTOL·‖Dθ‖, ~1e-3 on the bench frames) while it gains ≤ FTOL; or
- * when μ passes MU_CAP after consecutive rejections (no decrease left at this precision, MINPACK's
- * info = 6/7).
+ * prered ≤ FTOL (then ‖Jδ‖ ≤ √(FTOL·χ²); with weighted residuals ‖Jδ‖ is the step's length in
+ * standard errors, |δ_j| ≤ ‖Jδ‖·σ_j by Cauchy–Schwarz, so ~1e-5·√χ² of an error bar), tested on
+ * rejected trials too, so that a fit already at its
+ * optimum stops after one trial instead of raising μ ~30 times; or when a step, accepted or not,
+ * is tiny against the parameters, ‖Dδ‖ ≤ XTOL·‖Dθ‖ (D = Jacobian column norms; as a standard
+ * error σ_j ≥ 1/D_j, each |δ_j| ≤ XTOL·‖Dθ‖·σ_j), and gains ≤ FTOL; or when μ passes MU_CAP
+ * after consecutive rejections (no decrease left at this precision, MINPACK's info = 6/7; on the
+ * bench frames χ² itself is only good to a few 1e-10, so a trial or two at the optimum may be
+ * rejected on rounding before |actred| ≤ FTOL holds).
  */
 const FTOL = 1e-10;
 const XTOL = 1e-10;
 const MU_CAP = 1e16;
 
 /** Levenberg–Marquardt from theta0; returns the best parameters and the iteration count. */
-function levenbergMarquardt(problem: Problem, theta0: Float64Array, skip: number, maxIterations: number): { theta: Float64Array; cost: number; iterations: number } {
+interface LmResult {
+  theta: Float64Array;
+  cost: number;
+  iterations: number;
+  /** Passes of the forward model over the points (Jacobian columns count two). */
+  evaluations: number;
+}
+
+function levenbergMarquardt(problem: Problem, theta0: Float64Array, skip: number, maxIterations: number): LmResult {
   const k = theta0.length;
   const n = problem.points.length;
   let theta = Float64Array.from(theta0);
   let current = cost(problem, theta, skip);
   let mu = 1e-3;
   let iterations = 0;
+  let evaluations = 1;
+  const done = (): LmResult => ({ theta, cost: current, iterations, evaluations });
   while (iterations < maxIterations) {
     iterations++;
     const { a, rows } = jacobian(problem, theta, skip, true);
+    evaluations += 2 * k + 1;
     const r = new Float64Array(rows);
     r.set(pixelResiduals(problem, theta, skip));
     r.set(penalties(problem, theta), n);
@@ -208,6 +225,7 @@ function levenbergMarquardt(problem: Problem, theta0: Float64Array, skip: number
       const delta = qrSolve(householderQr({ rows: rows + k, cols: k, a: aug }), rhs);
       const trial = Float64Array.from(theta, (v, j) => v + delta[j]);
       const trialCost = cost(problem, trial, skip);
+      evaluations++;
       let jDeltaSq = 0;
       for (let i = 0; i < rows; i++) {
         let s = 0;
@@ -224,17 +242,17 @@ function levenbergMarquardt(problem: Problem, theta0: Float64Array, skip: number
         current = trialCost;
       }
       const ratio = prered > 0 ? actred / prered : 0;
-      if (Math.abs(actred) <= FTOL && prered <= FTOL && ratio <= 2) return { theta, cost: current, iterations };
-      if (accepted && actred <= FTOL && Math.sqrt(dDeltaSq) <= XTOL * xNorm) return { theta, cost: current, iterations };
+      if (Math.abs(actred) <= FTOL && prered <= FTOL && ratio <= 2) return done();
+      if (actred <= FTOL && Math.sqrt(dDeltaSq) <= XTOL * xNorm) return done();
       if (accepted) {
         mu = Math.max(mu / 3, 1e-12);
         break;
       }
       mu *= 4;
-      if (mu > MU_CAP) return { theta, cost: current, iterations };
+      if (mu > MU_CAP) return done();
     }
   }
-  return { theta, cost: current, iterations };
+  return done();
 }
 
 function resolve(points: readonly GratingMapPoint[], start: GratingGeometry, options: GratingMapOptions): Problem {
@@ -280,12 +298,14 @@ export function fitGratingMap(points: readonly GratingMapPoint[], start: Grating
     const sign = s % 2 === 0 ? 1 : -1;
     starts.push(Float64Array.from(names, (name, j) => start[name] + sign * (j % 2 === 0 ? 1 : -1) * magnitude * RESTART_SCALE[name](start)));
   }
-  let best: { theta: Float64Array; cost: number; iterations: number } = { theta: theta0, cost: Number.POSITIVE_INFINITY, iterations: 0 };
+  let best: LmResult = { theta: theta0, cost: Number.POSITIVE_INFINITY, iterations: 0, evaluations: 0 };
   let bestStart = 0;
   let totalIterations = 0;
+  let evaluations = 0;
   starts.forEach((t, s) => {
     const result = levenbergMarquardt(problem, t, -1, maxIterations);
     totalIterations += result.iterations;
+    evaluations += result.evaluations;
     if (result.cost < best.cost) {
       best = result;
       bestStart = s;
@@ -327,11 +347,13 @@ export function fitGratingMap(points: readonly GratingMapPoint[], start: Grating
   const exactAll = (options.leaveOneOut ?? 'leverage') === 'refit';
   const leaveOneOutResidualsPx: number[] = [];
   const leaveOneOutResidualsNm: number[] = [];
+  let leaveOneOutRefits = 0;
   points.forEach((pt, i) => {
     const denom = 1 - leverage[i];
     // High leverage: the point pulls the fit hard and the linearisation is weakest, so refit.
     if (exactAll || !(leverage[i] <= HIGH_LEVERAGE)) {
       const loo = levenbergMarquardt(problem, theta, i, maxIterations);
+      leaveOneOutRefits++;
       const g = withParameters(start, names, loo.theta);
       leaveOneOutResidualsPx.push(pt.pixel - wavelengthToPixel(g, pt.wavelengthNm, pt.diffractionOrder));
       leaveOneOutResidualsNm.push(pt.wavelengthNm - pixelToWavelengthNm(g, pt.pixel, pt.diffractionOrder));
@@ -355,6 +377,8 @@ export function fitGratingMap(points: readonly GratingMapPoint[], start: Grating
     conditionNumber,
     wellConditioned: conditionNumber <= 1e8,
     iterations: totalIterations,
+    evaluations,
+    leaveOneOutRefits,
     starts: starts.length,
     bestStart,
   };
