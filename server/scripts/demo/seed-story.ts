@@ -23,7 +23,7 @@ import { decodeUpload } from '../../modules/frames/decode.ts';
 import { storeUploads } from '../../modules/frames/service.ts';
 import { runWorkbench } from '../../modules/versions/workbench.ts';
 import { approveVersion, createVersion, submitVersion } from '../../modules/versions/service.ts';
-import { demoStories, type DemoFrame, type DemoInstrumentStory } from './story.ts';
+import { DELAY_SCAN_PERIOD_RAD, demoStories, type DemoFrame, type DemoInstrumentStory } from './story.ts';
 
 export interface StorySeedResult {
   frames: number;
@@ -152,6 +152,6 @@ export async function seedDemoSpectra(deps: DemoSpectraDeps, frameIds: Map<strin
     await getSpectrum(spectraDeps, student, frameId);
     made += 1;
   }
-  const run = await createRun({ ...spectraDeps, queue: deps.queue }, student, instrument!.id, createRunSchema.parse({ scanVariable: 'phaseDelayRad' }));
+  const run = await createRun({ ...spectraDeps, queue: deps.queue }, student, instrument!.id, createRunSchema.parse({ scanVariable: 'phaseDelayRad', period: DELAY_SCAN_PERIOD_RAD }));
   return { spectra: made, runFrames: run.total };
 }

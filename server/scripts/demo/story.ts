@@ -138,6 +138,12 @@ function neonFrame(name: string, epoch: keyof typeof XUV_TRUE, takenAt: string, 
   };
 }
 
+/**
+ * Period of the yield modulation in the relative phase, rad: π, because shifting the 2ω phase by π
+ * gives the field −E(t + T/2), whose harmonic intensities are the same (common practice for ω–2ω).
+ */
+export const DELAY_SCAN_PERIOD_RAD = Math.PI;
+
 /** The relative phase delay of the 400 nm field in the delay scan, rad: 24 steps over 2π. */
 export const DELAY_SCAN_PHASES_RAD = Array.from({ length: 24 }, (_, k) => (2 * Math.PI * k) / 24);
 

@@ -7,14 +7,16 @@
  * false peaks between two first-order lines do not block a seed), placed by a linear solve of
  * centre and distance (no iterative fit), pruned by the realignment ranges, ranked by how many
  * peaks they put on predicted lines, de-duplicated (seeds that differ by a uniform shift of their
- * harmonics are one pattern), then grown outward with the physical grating model (grating.ts),
- * every nuisance parameter (centre, distance, incidence, tilt, λ0) free inside soft walls
- * (search.ts). Leftover peaks are tested as m = 2 lines (position, and a narrower spatial profile
- * when measured) and kept only if the whole labelling scores better with them. The slips of the
- * leading labelling (every first-order label ±1 and ±2 parity steps) are then fitted in earnest
- * from several starts, because they are exactly the rivals that make a confident answer wrong.
- * Labellings are compared by −2 ln L (score.ts); `unique` only when every contradicting
- * labelling trails by ≥ 16 (≈ 4σ).
+ * harmonics are one pattern; a few seeds that explain more strong peaks once their m = 2 lines
+ * count are grown too, for frames whose bright m = 2 lines outnumber the m = 1 comb), then grown
+ * outward with the physical grating model (grating.ts), every nuisance parameter (centre,
+ * distance, incidence, tilt, λ0) free inside soft walls (search.ts). Leftover peaks are tested
+ * as m = 2 lines (position, and a narrower spatial profile when measured; never when the m = 1
+ * partner should be on the detector and is not seen) and kept only if the whole labelling scores
+ * better with them. The slips of the leading labelling (every first-order label ±1 and ±2 parity
+ * steps) are then fitted in earnest from several starts, because they are exactly the rivals
+ * that make a confident answer wrong. Labellings are compared by −2 ln L (score.ts); `unique`
+ * only when every contradicting labelling trails by ≥ 16 (≈ 4σ).
  *
  * Trust: a peak within 1.5 FWHM of the detector edge (a possibly truncated line) has its position
  * uncertainty raised to 0.15 FWHM and seeds no hypothesis; a saturated peak ranks as bright
@@ -84,6 +86,8 @@ export const UNIQUE_MARGIN = 16;
 /** Smallest centroid uncertainty believed, px (sub-0.005 px claims are numerical, not physical). */
 const SIGMA_FLOOR_PX = 0.005;
 const MAX_GROWN_SEEDS = 8;
+/** Extra seeds grown because they explain more strong peaks once m = 2 lines count (see searchCandidates). */
+const MAX_SECOND_ORDER_SEEDS = 2;
 /** A one-step slip trailing by this many unique margins makes the two-step slip in that direction pointless to fit. */
 const HOPELESS_SLIP_MARGINS = 50;
 /** A peak whose centre lies within this many FWHM of the detector edge counts as an edge peak. */
@@ -335,6 +339,10 @@ function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8A
       if (Number.isFinite(ctx.peaks[i].spatialWidthPx)) firstOrderWidth.push({ px: ctx.peaks[i].pixel, w: ctx.peaks[i].spatialWidthPx });
     }
   }
+  // m = 1 partners the fit puts well inside the detector (filters not opaque at their energy).
+  const lines1 = predictLines(ctx, fit.parameters, 1);
+  const partnerOnDetector = new Map<number, number>();
+  lines1.harmonic.forEach((q, j) => partnerOnDetector.set(q, lines1.pixel[j]));
   const spurious = spuriousCost(ctx.model.pixelCount);
   for (let i = 0; i < n; i++) {
     if (harmonic[i] > 0) continue;
@@ -353,6 +361,13 @@ function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8A
     // A second-order line cannot outshine its own first-order line (gratings put far less into m = 2).
     const a1 = firstOrderArea.get(q);
     if (a1 !== undefined && pk.area > a1 && !firstOrderSaturated.has(q)) continue;
+    // The m = 2 line of q has the photon energy of the m = 1 line of q (same filter transmission)
+    // and a grating puts less into m = 2, so an m = 2 line whose m = 1 partner lies well inside the
+    // detector and was not seen is no m = 2 line. Partners off the detector (shorter wavelength than
+    // it covers) or at its edge prove nothing.
+    const partnerPx = partnerOnDetector.get(q);
+    const margin = EDGE_FWHM * pk.fwhmPx;
+    if (a1 === undefined && partnerPx !== undefined && partnerPx > margin && partnerPx < ctx.model.pixelCount - 1 - margin) continue;
     // Divergence falls with harmonic order: the m = 2 line of q is narrower than the m = 1 line of ~q/2 beside it.
     if (Number.isFinite(pk.spatialWidthPx) && firstOrderWidth.length >= 2) {
       const near = [...firstOrderWidth].sort((a, b) => Math.abs(a.px - pk.pixel) - Math.abs(b.px - pk.pixel)).slice(0, 2);
@@ -506,6 +521,8 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
     harmonic: Int32Array;
     start: Float64Array;
     matches: number;
+    /** Strong peaks not on an m = 1 line that sit on an m = 2 line. */
+    matchesSecond: number;
     /** Peaks of any strength on the seed's predicted lines. */
     matchesAll: number;
     /** Plausibility of the seed's geometry (lower is better); ranks seeds with equal matches. */
@@ -571,13 +588,23 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
             implied.push([s, lines.harmonic[j]]);
           }
         }
+        // Strong peaks off every m = 1 line but on an m = 2 line of the seed's geometry: a frame with
+        // bright second-order lines would otherwise rank seeds that read them as first order highest.
+        const lines2 = predictLines(ctx, seedParams, 2);
+        let matchesSecond = 0;
+        for (const s of strong) {
+          const j1 = nearestLine(lines, ctx.peaks[s].pixel);
+          if (j1 >= 0 && Math.abs(ctx.peaks[s].pixel - lines.pixel[j1]) < 0.12 * localSpacing(lines, j1)) continue;
+          const j = nearestLine(lines2, ctx.peaks[s].pixel);
+          if (j >= 0 && Math.abs(ctx.peaks[s].pixel - lines2.pixel[j]) < 0.12 * localSpacing(lines2, j)) matchesSecond++;
+        }
         // All peaks on predicted lines: separates seeds that all explain the few strongest peaks.
         let matchesAll = 0;
         for (let i = 0; i < n; i++) {
           const j = nearestLine(lines, ctx.peaks[i].pixel);
           if (j >= 0 && Math.abs(ctx.peaks[i].pixel - lines.pixel[j]) < 0.12 * localSpacing(lines, j)) matchesAll++;
         }
-        seeds.push({ harmonic, start: seedParams, matches, matchesAll, cost: seedCost, key, implied });
+        seeds.push({ harmonic, start: seedParams, matches, matchesSecond, matchesAll, cost: seedCost, key, implied });
       }
     }
   }
@@ -588,36 +615,52 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
   const out = new Map<string, Candidate>();
   let grown = 0;
   const topMatches = seeds.length > 0 ? seeds[0].matches : 0;
-  for (const seed of seeds) {
-    if (grown >= MAX_GROWN_SEEDS) break;
-    // Seeds that explain far fewer strong peaks than the best seed cannot win; growing them wastes time.
-    if (seed.matches < topMatches - 2 && grown >= 4) break;
-    if (grownKeys.has(seed.key)) continue;
+  /** Grows one seed into a finished candidate unless an equivalent seed was grown; false when skipped. */
+  const tryGrow = (seed: Seed): boolean => {
+    if (grownKeys.has(seed.key)) return false;
     grownKeys.add(seed.key);
     // Seeds that differ only by a uniform shift of their implied harmonics are slips of one
     // pattern: grow the most plausible one; the slips of the leading labelling are fitted in
     // earnest afterwards (shiftedRivals).
     // With pins a shifted copy is not the same hypothesis (the pins break the shift symmetry).
     const pattern = ctx.pins.size > 0 ? seed.key + Array.from(seed.harmonic).join('/') : patternKey(seed.implied);
-    if (grownPatterns.has(pattern)) continue;
+    if (grownPatterns.has(pattern)) return false;
     if (ctx.pins.size === 0) grownPatterns.add(pattern);
     // A seed whose implied labels a grown labelling already carries would grow into that labelling.
-    if (grownLabellings.some((h) => seed.implied.every(([i, q]) => h[i] === q))) continue;
-    grown++;
+    if (grownLabellings.some((h) => seed.implied.every(([i, q]) => h[i] === q))) return false;
     const lab = grow(ctx, seed.harmonic, seed.start);
-    if (!lab) continue;
+    if (!lab) return true;
     // With pins, only a seed that grew stands for its pattern: a failed one must not hide the others.
     grownPatterns.add(pattern);
     grownLabellings.push(lab.harmonic);
     let ok = true;
     for (const [p, q] of ctx.pins) if (lab.harmonic[p] !== q) ok = false;
-    if (!ok) continue;
+    if (!ok) return true;
     const key0 = labelKey(lab.harmonic, lab.order);
-    if (out.has(key0)) continue;
+    if (out.has(key0)) return true;
     const cand = finish(ctx, lab.harmonic, lab.order, lab.fit.parameters);
     const key = labelKey(cand.harmonic, cand.order);
     const prev = out.get(key);
     if (!prev || totalScore(cand.raw, 1) < totalScore(prev.raw, 1)) out.set(key, cand);
+    return true;
+  };
+  for (const seed of seeds) {
+    if (grown >= MAX_GROWN_SEEDS) break;
+    // Seeds that explain far fewer strong peaks than the best seed cannot win; growing them wastes time.
+    if (seed.matches < topMatches - 2 && grown >= 4) break;
+    if (tryGrow(seed)) grown++;
+  }
+  // Bright m = 2 lines (their m = 1 partners possibly off the detector) can make every seed that
+  // reads them as first order outrank the true comb on m = 1 matches alone. Grow the few seeds that
+  // explain more strong peaks than any m = 1-only reading once m = 2 lines count too; the score
+  // decides between them and the rest.
+  const bySecond = seeds
+    .filter((s) => s.matches + s.matchesSecond > topMatches)
+    .sort((x, y) => y.matches + y.matchesSecond - (x.matches + x.matchesSecond) || y.matches - x.matches || x.cost - y.cost);
+  let grownSecond = 0;
+  for (const seed of bySecond) {
+    if (grownSecond >= MAX_SECOND_ORDER_SEEDS) break;
+    if (tryGrow(seed)) grownSecond++;
   }
   return [...out.values()];
 }
