@@ -8,7 +8,8 @@
  * a scientist calibrates version 1 from a neon frame and the owner approves it (through the
  * routes). A student uploads a daily frame in the browser, gets its labelled spectrum from
  * version 1, switches to photon energy and exports CSV and JSON (numbers equal the API's). A
- * frame older than every version gets the no_calibration message. The student runs the 24-frame
+ * frame older than every version gets the no_calibration message (and fails in a run, with its
+ * reason, until retried). The student runs the 24-frame
  * two-colour delay scan from the frames table and sees the progress bar, the scan map, the yield
  * curves and the modulation fit. After the camera mount moves, version 2 is approved: version
  * 1's spectra are marked stale and one action re-applies them; a frame taken after version 2's
@@ -239,6 +240,7 @@ describe('spectra, runs, drift and notices in the browser', () => {
     const calId = await upload('scientist', cal, tiffOf(cal));
     version1Id = await approveVersion(calId, cal, '2026-11-02T08:00:00.000Z', 'Realigned after the vent (invented e2e).');
     browser = await launchBrowser();
+    browser.page.on('pageerror', (e) => console.error('page error:', e.message));
   });
 
   afterAll(async () => {
@@ -296,12 +298,14 @@ describe('spectra, runs, drift and notices in the browser', () => {
     expect(await chart.getByRole('img').getAttribute('aria-label')).toContain('photon energy (eV');
     await page.waitForTimeout(300);
     await screenshot(page, 'spectra-spectrum-energy');
-    await page.getByLabel('Log intensity').check();
+    // A click, not check(): the box follows the URL, which the router updates in a transition.
+    await page.getByLabel('Log intensity').click();
     await expect.poll(() => chart.getAttribute('data-log')).toBe('true');
     expect(page.url()).toContain('scale=log');
     await page.waitForTimeout(300);
     await screenshot(page, 'spectra-spectrum-energy-log');
-    await page.getByLabel('Log intensity').uncheck();
+    await page.getByLabel('Log intensity').click();
+    await expect.poll(() => chart.getAttribute('data-log')).toBe('false');
 
     // CSV export: the file's numbers are the API's numbers, exactly (shortest round-trip form).
     const [csvDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export CSV' }).click()]);
@@ -333,13 +337,25 @@ describe('spectra, runs, drift and notices in the browser', () => {
     await page.emulateMedia({ media: 'screen' });
   });
 
-  it('a frame older than every approved version gets the no_calibration message', async () => {
+  it('a frame older than every approved version gets the no_calibration message, fails in a run with the reason, and is retried from the run page', async () => {
     const { page } = browser;
     const old = byName('cal-2026-10-05');
     const id = await upload('student', old, tiffOf(old));
     await page.goto(`${base}/frames/${id}/spectrum`);
     await page.getByText('No approved calibration covers this frame').waitFor({ timeout: 30_000 });
     expect(await page.getByTestId('spectrum-chart').count()).toBe(0);
+
+    // In a run the same frame fails with the reason; the starter retries it from the run page (it fails again: still no version).
+    const run = await api<Run>('student', 'POST', paths.instrumentRuns(instrumentId), { frameIds: [id] });
+    expect(run.status, JSON.stringify(run.body)).toBe(201);
+    await page.goto(`${base}/runs/${run.body.id}`);
+    const item = page.getByTestId('run-item');
+    await expect.poll(() => item.getAttribute('data-state'), { timeout: 60_000, interval: 300 }).toBe('failed');
+    expect(await item.textContent()).toMatch(/calibration/i);
+    await page.getByRole('button', { name: 'Retry 1 failed' }).click();
+    await expect.poll(async () => (await waitForRun(run.body.id)).items[0]!.attempts, { timeout: 60_000 }).toBe(2);
+    await expect.poll(() => item.locator('td').nth(3).textContent(), { timeout: 30_000 }).toBe('2');
+    expect(await item.getAttribute('data-state')).toBe('failed');
   });
 
   it('a run of 24 frames finishes with a progress bar and shows the scan map, yield curves and modulation fit', async () => {
@@ -430,6 +446,49 @@ describe('spectra, runs, drift and notices in the browser', () => {
     expect(await page.getByTestId('calibration-used').getAttribute('data-version')).toBe('1');
     const v1 = await pageGet<{ state: string }>(page, paths.version(version1Id));
     expect(v1.state).toBe('superseded');
+  });
+
+  it('a scan of peak intensity, started from the instrument page, shows the cutoff against field strength with its power-law fit', async () => {
+    const { page } = browser;
+    // Six invented frames (no filter) whose cutoff follows the cutoff law E = Ip + 3.17·Up (Corkum, PRL 71, 1994
+    // (1993)), with Up[eV] = 9.33·10⁻¹⁴·I[W/cm²]·λ²[µm²] (the usual ponderomotive energy; constant from memory) and Ip(Ne) = 21.56 eV
+    // (NIST Atomic Spectra Database ionization energies), at the demo's effective driver 798.6 nm.
+    const template = byName('daily-2026-11-16');
+    const photonEv = 1239.84198 / 798.6;
+    const intensities = [1.6e14, 2.0e14, 2.4e14, 2.8e14, 3.2e14, 3.6e14];
+    for (const [k, intensity] of intensities.entries()) {
+      const cutoffEv = 21.56 + 3.17 * 9.33e-14 * intensity * 0.7986 ** 2;
+      const frame: DemoFrame = {
+        ...template,
+        name: `intensity-scan-${k + 1}`,
+        seed: 7000 + k,
+        scenario: { ...template.scenario, filters: [], envelope: { ...template.scenario.envelope, cutoffHarmonic: cutoffEv / photonEv, rollOffOrders: 1.5 } },
+        meta: { ...template.meta, filters: [], scanVariable: 'peakIntensityWcm2', scanValue: intensity, tags: ['intensity-scan'] },
+      };
+      await upload('scientist', frame, tiffOf(frame, { noJitter: true }), { takenAt: `2026-11-20T10:0${k}:00.000Z` });
+    }
+    await page.goto(`${base}/instruments/${instrumentId}/spectra`);
+    const form = page.getByRole('form', { name: 'Run a scan' });
+    await form.getByLabel('Scan variable').fill('peakIntensityWcm2');
+    await form.getByRole('button', { name: 'Run the scan' }).click();
+    await page.waitForURL(/\/runs\//);
+    const runId = new URL(page.url()).pathname.split('/')[2]!;
+    await expect.poll(() => page.getByTestId('run-state').textContent(), { timeout: 100_000, interval: 500 }).toBe('done');
+    expect(await page.getByTestId('run-counts').textContent()).toContain('6 of 6 done');
+    const fitText = page.getByTestId('cutoff-fit');
+    await fitText.waitFor({ timeout: 30_000 });
+    // Intensity is not periodic: no sinusoidal modulation fit is offered for it.
+    expect(await page.getByTestId('modulation-table').count()).toBe(0);
+    const scan = await pageGet<ScanResponse>(page, paths.runScan(runId));
+    expect(scan.cutoff.points.map((p) => p.x)).toEqual(intensities);
+    // The detected cutoff rises with intensity; between the Ip-dominated (k → 0) and Up-dominated (k → 1) limits.
+    const cutoffs = scan.cutoff.points.map((p) => p.cutoffEv);
+    for (let i = 1; i < cutoffs.length; i++) expect(cutoffs[i]!).toBeGreaterThanOrEqual(cutoffs[i - 1]!);
+    expect(scan.cutoff.fit!.exponent).toBeGreaterThan(0.4);
+    expect(scan.cutoff.fit!.exponent).toBeLessThan(1);
+    expect(await fitText.textContent()).toContain(`k = ${scan.cutoff.fit!.exponent.toFixed(3)}`);
+    await page.waitForTimeout(400);
+    await screenshot(page, 'spectra-cutoff-scan');
   });
 
   it('frames with the camera shifted by two pixels raise the drift flag and one notice, and the notices arrive in the Outbox', async () => {

@@ -46,7 +46,7 @@ export function InstrumentSpectraRoute() {
             <div className="flex flex-col gap-4">
               <InstrumentDriftChart series={drift.data} />
               {mayManage ? (
-                <DriftThresholdForm key={`${drift.data.threshold.sigma}-${drift.data.threshold.px}`} instrumentId={instrumentId} threshold={drift.data.threshold} />
+                <DriftThresholdForm instrumentId={instrumentId} threshold={drift.data.threshold} />
               ) : (
                 <p className="text-sm text-slate-600">
                   Threshold: {drift.data.threshold.sigma} σ and {drift.data.threshold.px} px (the instrument&apos;s owners set it).

@@ -15,7 +15,10 @@ import { ErrorAlert } from '@/components/alert';
 import { Button } from '@/components/button';
 import { Loading, PageHeader, Panel } from '@/components/page';
 
-/** A scan variable that is a field strength or intensity, where a cutoff power law is expected. */
+/**
+ * A scan variable that is a field strength or intensity: the cutoff power law is shown, and the
+ * sinusoidal modulation fit (meant for periodic variables such as a two-colour phase) is not.
+ */
 const FIELD_LIKE = /intens|field|power|fluence|W\/cm|V\/m|energy|pulse/i;
 
 /** /runs/:runId — progress (polled while queued/running), cancel, retry, items, and the scan plots. */
@@ -97,23 +100,25 @@ export function RunRoute() {
                 <Panel title="Per-order yield">
                   <YieldCurves scan={scan.data} />
                 </Panel>
-                <Panel
-                  title="Modulation fit per order"
-                  actions={
-                    <label className="flex items-center gap-2 text-sm text-slate-700 print:hidden">
-                      Period
-                      <input
-                        className="w-28 rounded-md border border-slate-300 px-2 py-1 text-sm"
-                        placeholder={r.period === null ? '2π' : String(r.period)}
-                        value={periodText}
-                        onChange={(e) => setPeriodText(e.target.value.trim())}
-                        aria-label="Modulation period"
-                      />
-                    </label>
-                  }
-                >
-                  <ModulationFits scan={scan.data} />
-                </Panel>
+                {FIELD_LIKE.test(scan.data.scanVariable ?? '') ? null : (
+                  <Panel
+                    title="Modulation fit per order"
+                    actions={
+                      <label className="flex items-center gap-2 text-sm text-slate-700 print:hidden">
+                        Period
+                        <input
+                          className="w-28 rounded-md border border-slate-300 px-2 py-1 text-sm"
+                          placeholder={r.period === null ? '2π' : String(r.period)}
+                          value={periodText}
+                          onChange={(e) => setPeriodText(e.target.value.trim())}
+                          aria-label="Modulation period"
+                        />
+                      </label>
+                    }
+                  >
+                    <ModulationFits scan={scan.data} />
+                  </Panel>
+                )}
                 {FIELD_LIKE.test(scan.data.scanVariable ?? '') ? (
                   <Panel title="Cutoff versus field strength">
                     <CutoffPlot scan={scan.data} />

@@ -48,6 +48,11 @@ export function VersionRoute() {
             · valid from {when(v.validFrom)} until {v.state === 'superseded' && v.supersededAt ? `${when(v.supersededAt)} (superseded)` : when(v.validUntil)}
           </span>
         }
+        actions={
+          <Link className="inline-flex items-center rounded-md bg-white px-3.5 py-2 text-sm font-medium text-slate-800 shadow-xs ring-1 ring-slate-300 hover:bg-slate-50" to={`/versions/${v.id}/report`}>
+            Printable report
+          </Link>
+        }
       />
       <div className="flex flex-col gap-6">
         <div className="grid gap-6 lg:grid-cols-2">

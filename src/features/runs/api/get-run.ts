@@ -1,4 +1,5 @@
-import { queryOptions, useQuery } from '@tanstack/react-query';
+import { useEffect, useRef } from 'react';
+import { queryOptions, useQuery, useQueryClient } from '@tanstack/react-query';
 import { paths } from '../../../../shared/api/paths.ts';
 import type { Run } from '../../../../shared/api/runs.ts';
 import { api } from '@/lib/api-client';
@@ -24,7 +25,21 @@ export const runQueryOptions = (runId: string) =>
     refetchInterval: (query) => (runIsActive(query.state.data) ? RUN_POLL_MS : false),
   });
 
-/** One run with its items, polled while queued or running. */
+/**
+ * One run with its items, polled while queued or running. When a run this page watched finishes,
+ * cached spectra, spectra lists and drift are refetched: the run has just changed them.
+ */
 export function useRun(runId: string) {
-  return useQuery({ ...runQueryOptions(runId), enabled: Boolean(runId) });
+  const query = useQuery({ ...runQueryOptions(runId), enabled: Boolean(runId) });
+  const queryClient = useQueryClient();
+  const wasActive = useRef(false);
+  const active = runIsActive(query.data);
+  useEffect(() => {
+    if (wasActive.current && !active && query.data) {
+      void queryClient.invalidateQueries({ queryKey: queryKeys.spectra.all });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.drift.all });
+    }
+    wasActive.current = active;
+  }, [active, query.data, queryClient]);
+  return query;
 }

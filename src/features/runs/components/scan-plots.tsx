@@ -3,11 +3,13 @@ import type uPlot from 'uplot';
 import { interpolateCividis } from 'd3-scale-chromatic';
 import type { ScanResponse } from '../../../../shared/api/runs.ts';
 import { UplotChart } from '@/components/uplot-chart';
-import { sinusoidAt } from '../lib/ticks';
+import { sinusoidAt, tickLabel } from '../lib/ticks';
 
 const FONT = '11px Fira Sans';
-const axisX = (label: string): uPlot.Axis => ({ label, font: FONT, labelFont: '12px Fira Sans' });
-const axisY = (label: string): uPlot.Axis => ({ label, size: 70, font: FONT, labelFont: '12px Fira Sans' });
+/** Tick text in the short form (1.6e+14 rather than 160,000,000,000,000) so wide ranges stay readable. */
+const tickValues: uPlot.Axis['values'] = (_u, splits) => splits.map((v) => (v === null || v === undefined ? '' : tickLabel(v)));
+const axisX = (label: string): uPlot.Axis => ({ label, font: FONT, labelFont: '12px Fira Sans', values: tickValues, space: 70 });
+const axisY = (label: string): uPlot.Axis => ({ label, size: 70, font: FONT, labelFont: '12px Fira Sans', values: tickValues });
 
 /** Distinct colours along cividis (avoiding its palest end, which vanishes on white). */
 const colourOf = (i: number, n: number) => interpolateCividis(0.05 + (0.8 * i) / Math.max(1, n - 1));
@@ -128,7 +130,7 @@ export function ModulationFits({ scan }: { scan: ScanResponse }) {
                       <td className="py-1.5 pr-3 text-right">{pm(m.fit.amplitude, m.fit.amplitudeSigma, 0)}</td>
                       <td className="py-1.5 pr-3 text-right">{pm(m.fit.phaseRad, m.fit.phaseSigmaRad, 3)}</td>
                       <td className="py-1.5 pr-3 text-right">{m.fit.modulationDepth === null ? '—' : m.fit.modulationDepth.toFixed(3)}</td>
-                      <td className="py-1.5 text-right">{m.fit.degreesOfFreedom > 0 ? (m.fit.chiSquare / m.fit.degreesOfFreedom).toFixed(2) : '—'}</td>
+                      <td className="py-1.5 text-right">{m.fit.covarianceFrom === 'sigma' && m.fit.degreesOfFreedom > 0 ? (m.fit.chiSquare / m.fit.degreesOfFreedom).toFixed(2) : '—'}</td>
                     </>
                   ) : (
                     <td colSpan={4} className="py-1.5 text-slate-500">
@@ -174,7 +176,7 @@ export function CutoffPlot({ scan }: { scan: ScanResponse }) {
       {fit ? (
         <p className="text-sm tabular-nums text-slate-700" data-testid="cutoff-fit">
           E<sub>cutoff</sub> = A·x<sup>k</sup>: k = {fit.exponent.toFixed(3)} ± {fit.exponentSigma.toFixed(3)}, A = {fit.prefactor.toPrecision(4)} ± {fit.prefactorSigma.toPrecision(2)} eV
-          {fit.degreesOfFreedom > 0 ? `, χ²/dof = ${(fit.chiSquare / fit.degreesOfFreedom).toFixed(2)}` : ''}
+          {fit.covarianceFrom === 'sigma' && fit.degreesOfFreedom > 0 ? `, χ²/dof = ${(fit.chiSquare / fit.degreesOfFreedom).toFixed(2)}` : ' (σ from the scatter about the fit)'}
         </p>
       ) : (
         <p className="text-sm text-slate-600">No power-law fit: {message ?? 'too few points.'}</p>
