@@ -235,6 +235,23 @@ describe('drift watch', () => {
     expect((await mailsTo(w.owner.email)).filter((m) => m.subject.startsWith('Drift'))).toHaveLength(2);
   });
 
+  it('a spectrum made on purpose with a version not in force measures drift but opens no episode and sends no notice', async () => {
+    const w = await world();
+    const v2From = new Date('2026-11-10T00:00:00Z');
+    await t.db.update(calibrationVersions).set({ state: 'superseded', validUntil: v2From }).where(eq(calibrationVersions.id, w.v1.id));
+    await insertApprovedVersion(t.db, w.instrument.id, w.owner.id, 2, v2From);
+    const moved = await insertFrame(t.db, t.store, w.instrument.id, frameBytes(61, { shiftPx: 2 }), { takenAt: new Date('2026-11-11T09:00:00Z') });
+    const c = await signIn(t.app, w.student.email);
+    const withOld = (await c.agent.get(`${paths.frameSpectrum(moved.id)}?version=1`).expect(200)).body;
+    expect(withOld.calibration).toMatchObject({ version: 1 });
+    expect(withOld.drift.flagged).toBe(true);
+    expect((await mailsTo(w.owner.email)).filter((m) => m.subject.startsWith('Drift'))).toHaveLength(0);
+    expect((await c.agent.get(paths.instrumentDrift(w.instrument.id)).expect(200)).body.episodes).toHaveLength(0);
+    // The same frame with the version in force is the instrument's drift: one episode, one notice.
+    expect((await c.agent.get(paths.frameSpectrum(moved.id)).expect(200)).body.drift.flagged).toBe(true);
+    expect((await mailsTo(w.owner.email)).filter((m) => m.subject.startsWith('Drift'))).toHaveLength(1);
+  });
+
   it('the owner sets the threshold; a student cannot', async () => {
     const w = await world();
     const student = await signIn(t.app, w.student.email);

@@ -198,7 +198,10 @@ export async function makeSpectrum(
     });
     return stored;
   });
-  await trackDrift(deps, frame, row, drift.threshold);
+  // Drift episodes watch the calibration in force: a spectrum made on purpose with another
+  // version (an old one, say) measures that version against the frame, not the instrument's drift.
+  const inForce = await deps.sources.versionValidAt(deps.db, frame.instrumentId, frame.takenAt);
+  if (inForce?.id === version.id) await trackDrift(deps, frame, row, drift.threshold);
   return row;
 }
 
