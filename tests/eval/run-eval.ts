@@ -18,6 +18,7 @@ import { HC_EV_NM } from '../../shared/engine/constants.ts';
 import { encodeFits, encodePng16, encodeTiff, generateScenarios, simulateFrame, type SimScenario, type SimTruth } from '../../shared/engine/simulate/index.ts';
 import type { Frame } from '../../shared/engine/types.ts';
 import type { CalibrateResult } from '../../shared/engine/calibrate.ts';
+import { cramerRaoRows } from './cramer-rao.ts';
 import { decidability } from './decidability.ts';
 
 const { values } = parseArgs({ options: { count: { type: 'string', default: '312' }, seed: { type: 'string', default: '2026' } } });
@@ -224,6 +225,12 @@ async function main() {
   console.log(`${verdict(wrong.length === 0)} wrong-but-confident: ${wrong.length} (target 0)`);
   console.log(`${verdict(ambiguousPct >= 95)} undecidable answered ambiguous (or refused): ${ambiguousPct.toFixed(1)} % (target ≥ 95 %)`);
   console.log(`${verdict(insidePct >= 90 && insidePct <= 98)} truth inside the 2σ band: ${insidePct.toFixed(1)} % of ${pixels} pixels (target 90-98 %)`);
+  const crb = cramerRaoRows();
+  console.log('\nCentroid scatter on clean lines against the Cramér–Rao bound (200 frames each):');
+  console.log('photons  sigma px  scatter px   bound px  ratio');
+  for (const r of crb) console.log(`${String(r.photons).padStart(7)}  ${r.sigmaPx.toFixed(1).padStart(8)}  ${r.scatterPx.toExponential(3).padStart(10)}  ${r.boundPx.toExponential(3).padStart(9)}  ${r.ratio.toFixed(3)}`);
+  const worstRatio = Math.max(...crb.map((r) => r.ratio));
+  console.log(`${verdict(worstRatio <= 1.5)} centroid scatter within 1.5× the Cramér–Rao bound: worst ratio ${worstRatio.toFixed(3)}`);
   for (const row of wrong) console.log(`  silent failure [${row.cls}, ${row.format}, slip margin ${row.slipMargin.toFixed(1)}]: ${row.detail}`);
   const missed = rows.filter((r) => r.decidable && r.outcome === 'ambiguous').slice(0, 10);
   for (const row of rows.filter((r) => !r.decidable && r.outcome === 'correct')) console.log(`  unique (right) on undecidable [${row.cls}, ${row.format}, slip margin ${row.slipMargin.toFixed(1)}]: ${row.detail}`);
