@@ -74,7 +74,20 @@ export interface VersionHistoryEntry {
   comment: string;
 }
 
+/** A spectrum a version produced (newest first in VersionDetail.spectra). */
+export interface VersionSpectrum {
+  frameId: string;
+  frameName: string;
+  takenAt: string;
+  stale: boolean;
+  driftFlagged: boolean;
+  madeAt: string;
+}
+
 export interface VersionDetail extends Version {
+  /** How many spectra this version produced, and the newest 100 of them. */
+  spectraCount: number;
+  spectra: VersionSpectrum[];
   calibration: Calibration;
   result: WorkbenchResult;
   inputs: WorkbenchRunInputs;

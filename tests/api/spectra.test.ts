@@ -92,6 +92,10 @@ describe('GET /api/frames/:frameId/spectrum', () => {
     const c = await signIn(t.app, w.student.email);
     expect((await c.agent.get(paths.frameSpectrum(before.id)).expect(200)).body.calibration).toMatchObject({ version: 1, state: 'superseded' });
     expect((await c.agent.get(paths.frameSpectrum(after.id)).expect(200)).body.calibration).toMatchObject({ version: 2, state: 'approved' });
+    // Each version lists the spectra it produced.
+    const v1 = (await c.agent.get(paths.version(w.v1.id)).expect(200)).body;
+    expect(v1.spectraCount).toBe(1);
+    expect(v1.spectra.map((x: { frameId: string }) => x.frameId)).toEqual([before.id]);
   });
 
   it('asking twice (or by two users) keeps one row per (frame, version)', async () => {

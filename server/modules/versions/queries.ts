@@ -1,9 +1,12 @@
 /** workbench_runs and calibration_versions table access, and the validity lookup. */
 import { and, desc, eq, gt, inArray, isNull, lte, or, sql } from 'drizzle-orm';
 import type { Executor } from '../../db/client.ts';
+import type { VersionSpectrum } from '../../../shared/api/versions.ts';
 import {
   calibrationVersions,
+  frames,
   instruments,
+  spectra,
   users,
   workbenchRuns,
   type CalibrationVersionRow,
@@ -93,4 +96,27 @@ export async function findVersionValidAt(db: Executor, instrumentId: string, t: 
     .orderBy(desc(calibrationVersions.validFrom))
     .limit(1);
   return row;
+}
+
+/** The spectra a version produced: how many, and the newest `limit` with their frames. */
+export async function listSpectraOfVersion(db: Executor, versionId: string, limit = 100): Promise<{ count: number; rows: VersionSpectrum[] }> {
+  const [{ count }] = await db.select({ count: sql<number>`count(*)::int` }).from(spectra).where(eq(spectra.versionId, versionId));
+  const rows = await db
+    .select({ frameId: spectra.frameId, frameName: frames.originalName, page: frames.page, takenAt: frames.takenAt, stale: spectra.stale, driftFlagged: spectra.driftFlagged, madeAt: spectra.createdAt })
+    .from(spectra)
+    .innerJoin(frames, eq(frames.id, spectra.frameId))
+    .where(eq(spectra.versionId, versionId))
+    .orderBy(desc(spectra.createdAt))
+    .limit(limit);
+  return {
+    count,
+    rows: rows.map((r) => ({
+      frameId: r.frameId,
+      frameName: r.page > 0 ? `${r.frameName} [page ${r.page}]` : r.frameName,
+      takenAt: r.takenAt.toISOString(),
+      stale: r.stale,
+      driftFlagged: r.driftFlagged,
+      madeAt: r.madeAt.toISOString(),
+    })),
+  };
 }

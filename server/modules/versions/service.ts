@@ -20,6 +20,7 @@ import {
   findVersionById,
   insertVersion,
   listEffectiveVersions,
+  listSpectraOfVersion,
   listVersionsOfInstrument,
   lockInstrument,
   nextVersionNumber,
@@ -175,8 +176,11 @@ export async function getVersion(db: Db, user: SessionUser, versionId: string): 
   const ids = [row.authorId, row.reviewerId, ...row.history.map((h) => h.byId)].filter((x): x is string => !!x);
   const people = new Map((await findPeople(db, [...new Set(ids)])).map((p) => [p.id, p]));
   const person = (id: string | null) => (id ? (people.get(id) ?? null) : null);
+  const made = await listSpectraOfVersion(db, row.id);
   return {
     ...toVersion(row),
+    spectraCount: made.count,
+    spectra: made.rows,
     calibration: row.calibration,
     result: run!.result,
     inputs: run!.inputs,

@@ -8,6 +8,7 @@ import { VersionHistory } from '@/features/versions/components/version-history';
 import { DraftEditor } from '@/features/versions/components/draft-editor';
 import { allowedVersionActions } from '@/features/versions/lib/version-permissions';
 import { VersionStateBadge } from '@/features/versions/components/version-state-badge';
+import { VersionSpectra } from '@/features/versions/components/version-spectra';
 import { MapPlot } from '@/features/workbench/components/map-plot';
 import { PeaksTable } from '@/features/workbench/components/peaks-table';
 import { ResidualsPlot } from '@/features/workbench/components/residuals-plot';
@@ -29,8 +30,6 @@ export function VersionRoute() {
   const v = version.data;
   const user = session.data?.user;
   const actor = { userId: user?.id ?? '', role: roleOn(session.data, v.instrumentId), isAdmin: Boolean(user?.isAdmin) };
-  // Issue 5 adds spectra; show the count only when the server sends it.
-  const spectra = (v as { spectraCount?: number }).spectraCount;
 
   return (
     <>
@@ -82,12 +81,8 @@ export function VersionRoute() {
                   </Link>
                 ))}
               </dd>
-              {spectra !== undefined ? (
-                <>
-                  <dt className="text-slate-500">spectra made</dt>
-                  <dd>{spectra}</dd>
-                </>
-              ) : null}
+              <dt className="text-slate-500">spectra made</dt>
+              <dd>{v.spectraCount}</dd>
               <dt className="text-slate-500">note</dt>
               <dd className="whitespace-pre-line">{v.note || '—'}</dd>
             </dl>
@@ -108,6 +103,9 @@ export function VersionRoute() {
             <ResidualsPlot calibration={v.calibration} />
           </Panel>
         </div>
+        <Panel title="Spectra made with this version">
+          <VersionSpectra versionNumber={v.number} count={v.spectraCount} spectra={v.spectra} />
+        </Panel>
         <Panel title="Peaks">
           <PeaksTable peaks={v.result.peaks} calibration={v.calibration} best={null} pins={v.inputs.pins} />
         </Panel>
