@@ -1,6 +1,12 @@
 /** Every API URL in one place; the client and the tests build URLs only through `paths`. */
 const enc = encodeURIComponent;
 
+/** `?version=N&filterCorrection=true` for the spectrum routes, each part only when set. */
+function spectrumQuery(version: number | undefined, filterCorrection: boolean): string {
+  const parts = [version !== undefined ? `version=${version}` : '', filterCorrection ? 'filterCorrection=true' : ''].filter(Boolean);
+  return parts.length > 0 ? `?${parts.join('&')}` : '';
+}
+
 export const paths = {
   health: () => '/api/health',
   session: () => '/api/session',
@@ -39,8 +45,8 @@ export const paths = {
   versionReject: (versionId: string) => `/api/versions/${enc(versionId)}/reject`,
   versionWithdraw: (versionId: string) => `/api/versions/${enc(versionId)}/withdraw`,
   // Spectra, runs, drift (issue 5)
-  frameSpectrum: (frameId: string, version?: number) => `/api/frames/${enc(frameId)}/spectrum${version !== undefined ? `?version=${version}` : ''}`,
-  frameSpectrumCsv: (frameId: string, version?: number) => `/api/frames/${enc(frameId)}/spectrum.csv${version !== undefined ? `?version=${version}` : ''}`,
+  frameSpectrum: (frameId: string, version?: number, filterCorrection = false) => `/api/frames/${enc(frameId)}/spectrum${spectrumQuery(version, filterCorrection)}`,
+  frameSpectrumCsv: (frameId: string, version?: number, filterCorrection = false) => `/api/frames/${enc(frameId)}/spectrum.csv${spectrumQuery(version, filterCorrection)}`,
   instrumentRuns: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/runs`,
   instrumentReapply: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/spectra/reapply`,
   /** GET: the instrument's spectra (frame, version, stale, drift flag); `stale` filters. */

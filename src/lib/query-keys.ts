@@ -39,7 +39,7 @@ export const queryKeys = {
   spectra: {
     all: ['spectra'] as const,
     /** A frame's spectrum; `version` undefined = the version valid at the frame's time. */
-    detail: (frameId: string, version: number | undefined) => [...queryKeys.spectra.all, 'detail', frameId, version ?? 'valid'] as const,
+    detail: (frameId: string, version: number | undefined, filterCorrection = false) => [...queryKeys.spectra.all, 'detail', frameId, version ?? 'valid', filterCorrection ? 'filter-corrected' : 'as-measured'] as const,
     /** An instrument's spectra list; `stale` undefined = all. */
     list: (instrumentId: string, stale: boolean | undefined) => [...queryKeys.spectra.all, 'list', instrumentId, stale ?? 'all'] as const,
   },

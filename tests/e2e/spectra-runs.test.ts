@@ -326,6 +326,24 @@ describe('spectra, runs, drift and notices in the browser', () => {
     expect(exported.orders).toEqual(apiSpectrum.orders);
     expect(exported.calibration).toEqual(apiSpectrum.calibration);
 
+    // The filter-transmission correction: the exported JSON is the corrected one, and every order
+    // carries the transmission it was divided by (Henke-based tables; a foil passes ≤ 1).
+    await page.getByLabel('Correct for filter transmission').click();
+    expect(page.url()).toContain('filters=corrected');
+    const [correctedDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export JSON' }).click()]);
+    const corrected = JSON.parse(await readFile((await correctedDownload.path())!, 'utf8')) as SpectrumResponse;
+    expect(corrected.orders.length).toBe(apiSpectrum.orders.length);
+    let correctedOrders = 0;
+    for (const [k, o] of corrected.orders.entries()) {
+      const t = (o as { filterTransmission?: number }).filterTransmission;
+      if (t === undefined || !Number.isFinite(t)) continue;
+      correctedOrders++;
+      expect(t).toBeLessThanOrEqual(1);
+      expect(o.yield).toBeCloseTo(apiSpectrum.orders[k]!.yield / Math.max(t, 1e-3), 6);
+    }
+    expect(correctedOrders).toBeGreaterThanOrEqual(10);
+    await page.getByLabel('Correct for filter transmission').click();
+
     // The printable report for the logbook, with this frame's spectrum and the version's numbers.
     await page.getByRole('link', { name: 'Calibration report' }).click();
     await page.getByTestId('calibration-report').waitFor();

@@ -25,7 +25,9 @@ export function SpectrumRoute() {
   const logIntensity = params.get('scale') === 'log';
   const frame = useFrame(frameId);
   const versions = useVersions(frame.data?.instrumentId ?? '');
-  const spectrum = useSpectrum(frameId, version);
+  // The filter-transmission correction divides by the calibration's filters at each photon energy (computed, not stored).
+  const filterCorrection = params.get('filters') === 'corrected';
+  const spectrum = useSpectrum(frameId, version, filterCorrection);
 
   const set = (key: string, value: string | undefined) => {
     const next = new URLSearchParams(params);
@@ -60,10 +62,10 @@ export function SpectrumRoute() {
             <CopyLinkButton />
             {spectrum.data ? (
               <>
-                <a className={linkButton} href={paths.frameSpectrumCsv(frameId, version)} download={`spectrum-${frameId}-v${spectrum.data.calibration.version}.csv`}>
+                <a className={linkButton} href={paths.frameSpectrumCsv(frameId, version, filterCorrection)} download={`spectrum-${frameId}-v${spectrum.data.calibration.version}.csv`}>
                   Export CSV
                 </a>
-                <a className={linkButton} href={paths.frameSpectrum(frameId, version)} download={`spectrum-${frameId}-v${spectrum.data.calibration.version}.json`}>
+                <a className={linkButton} href={paths.frameSpectrum(frameId, version, filterCorrection)} download={`spectrum-${frameId}-v${spectrum.data.calibration.version}.json`}>
                   Export JSON
                 </a>
                 <Link className={linkButton} to={`/versions/${spectrum.data.calibration.versionId}/report?frame=${frameId}`}>
@@ -81,6 +83,10 @@ export function SpectrumRoute() {
             <label className="flex items-center gap-2 text-sm text-slate-700">
               <input type="checkbox" className="size-4 accent-teal-700" checked={logIntensity} onChange={(e) => set('scale', e.target.checked ? 'log' : undefined)} />
               Log intensity
+            </label>
+            <label className="flex items-center gap-2 text-sm text-slate-700" title="Divide intensities and yields by the transmission of the calibration's filters at each photon energy (Henke-based tables)">
+              <input type="checkbox" className="size-4 accent-teal-700" checked={filterCorrection} onChange={(e) => set('filters', e.target.checked ? 'corrected' : undefined)} />
+              Correct for filter transmission
             </label>
           </span>
           <label className="flex items-center gap-2 text-sm text-slate-700">
