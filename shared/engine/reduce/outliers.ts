@@ -50,8 +50,10 @@ function screenRow(cur: Float32Array, a: Float32Array, b: Float32Array, c: Float
   return n;
 }
 
-/** Rows kept around the row being cleaned: itself and two spatial neighbours each side. */
-const WINDOW = 5;
+/** Rows the screen reads together: a group of {@link GROUP_ROWS} band rows and two neighbours each side. */
+export const GROUP_ROWS = 4;
+/** Dark-subtracted rows kept: enough for a group and its neighbours (and for one row and its four). */
+const RING = GROUP_ROWS + 4;
 
 /**
  * Replaces NaN pixels and hot/cosmic pixels, one spatial row at a time, reading the source
@@ -66,7 +68,7 @@ const WINDOW = 5;
  * the neighbouring rows. A replaced saturated pixel no longer flags saturation.
  *
  * Neighbours are always the source's original values, so the result does not depend on the
- * order rows are cleaned in. Dark-subtracted rows are prepared once each in a five-row ring.
+ * order rows are cleaned in. Dark-subtracted rows are prepared once each in a small ring.
  */
 export class RowCleaner {
   /** The last cleaned row (dark-subtracted, outliers replaced). */
@@ -78,6 +80,9 @@ export class RowCleaner {
   /** The loaded row's dark-subtracted values, its raw values, and its neighbours at rows s−2, s−1, s+1, s+2 (undefined past the frame edge). */
   cur: Float32Array = new Float32Array(0);
   rawRow: Float32Array = new Float32Array(0);
+  /** Rows s − 2 … s + GROUP_ROWS + 1 and the raw rows s … s + GROUP_ROWS − 1 after {@link loadGroup}(s). */
+  readonly groupRows: Float32Array[] = [];
+  readonly groupRaw: Float32Array[] = [];
   neighbours: (Float32Array | undefined)[] = [undefined, undefined, undefined, undefined];
   /** Whether the last {@link resolve} replaced its pixel, and whether as a hot pixel (which then no longer flags saturation; a replaced NaN keeps its raw flag). */
   wasReplaced = false;
@@ -85,7 +90,7 @@ export class RowCleaner {
   /** k·σ_floor, shrunk by 1e-9 for the rounding of the square root: the first screen's threshold. */
   readonly screenThreshold: number;
   private interior = false;
-  private readonly ringRows = new Int32Array(WINDOW).fill(-1);
+  private readonly ringRows = new Int32Array(RING).fill(-1);
   private readonly ring: Float32Array[] = [];
   private readonly buf = new Float64Array(4);
   private readonly candidates: Int32Array;
@@ -99,7 +104,7 @@ export class RowCleaner {
     this.saturated = new Uint8Array(L);
     this.candidates = new Int32Array(L);
     this.screenThreshold = settings.sigmas * Math.sqrt(settings.floorVariance) * (1 - 1e-9);
-    for (let k = 0; k < WINDOW; k++) this.ring.push(source.dark ? new Float32Array(L) : new Float32Array(0));
+    for (let k = 0; k < RING; k++) this.ring.push(source.dark ? new Float32Array(L) : new Float32Array(0));
   }
 
   /** The dark-subtracted values of spatial row s (a view of the frame when there is no dark). */
@@ -108,7 +113,7 @@ export class RowCleaner {
     const L = source.spectralLength;
     const i = rowIndex(source, s);
     if (!source.dark) return source.raw.subarray(i, i + L);
-    const slot = s % WINDOW;
+    const slot = s % RING;
     const out = this.ring[slot];
     if (this.ringRows[slot] !== s) {
       const { raw, dark } = source;
@@ -138,6 +143,24 @@ export class RowCleaner {
     }
     this.interior = all;
     return all && this.settings.rejectHot;
+  }
+
+  /**
+   * Prepares rows s … s + GROUP_ROWS − 1 for the caller's own first screen: true only when
+   * every neighbour of each exists and hot pixels are rejected. {@link groupRows}[j] is then
+   * row s − 2 + j (j < GROUP_ROWS + 4) and {@link groupRaw}[j] the raw values of row s + j.
+   * Call {@link load} for a row before {@link resolve} on it.
+   */
+  loadGroup(s: number): boolean {
+    const { source } = this;
+    if (!this.settings.rejectHot || s - 2 < 0 || s + GROUP_ROWS + 1 >= source.spatialLength) return false;
+    const L = source.spectralLength;
+    for (let j = 0; j < GROUP_ROWS + 4; j++) this.groupRows[j] = this.row(s - 2 + j);
+    for (let j = 0; j < GROUP_ROWS; j++) {
+      const i = rowIndex(source, s + j);
+      this.groupRaw[j] = source.dark ? source.raw.subarray(i, i + L) : this.groupRows[j + 2];
+    }
+    return true;
   }
 
   /** Cleans spatial row s into {@link values} and {@link saturated}; returns how many pixels were replaced. */

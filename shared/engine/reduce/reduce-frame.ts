@@ -6,6 +6,7 @@ import { type ReduceOptions, resolveReduceOptions } from './options.ts';
 import { RowCleaner, bandPedestal } from './outliers.ts';
 import { type AxisGeometry, axisGeometry, frameCensus, rowSource } from './strip.ts';
 import { sumBand } from './sum-band.ts';
+import { addCleanRows } from './sum-rows.ts';
 
 /** Rows read beyond each band edge so that edge pixels have spatial neighbours for rejection. */
 const MARGIN_ROWS = 2;
@@ -13,11 +14,6 @@ const MARGIN_ROWS = 2;
 /** The band's rows and their neighbours, readable spectral-contiguously (a view for axis 'x'). */
 function sourcedBand(frame: Frame, dark: Frame | undefined, geometry: AxisGeometry, band: SpatialBand): SourcedBand {
   return { source: rowSource(frame, dark, geometry, band.start - MARGIN_ROWS, band.end + MARGIN_ROWS), band };
-}
-
-/** sum[p] += row[p]: a function per row so V8 optimises it whole (see strip.ts sumAndMin). */
-function addInto(sum: Float64Array, row: Float32Array): void {
-  for (let p = 0; p < sum.length; p++) sum[p] += row[p];
 }
 
 /** Centred boxcar of odd width `size` (shrunk at the ends); returns the input when size is 1. */
@@ -112,12 +108,7 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
   let bg: Float64Array = new Float64Array(L);
   if (bgRowCount > 0) {
     for (const s of bgs) {
-      const cleaner = cleanerFor(s, bgPedestal);
-      const v = cleaner.values;
-      for (let row = s.band.start; row < s.band.end; row++) {
-        rejected += cleaner.clean(row);
-        addInto(bg, v);
-      }
+      rejected += addCleanRows(cleanerFor(s, bgPedestal), s.band.start, s.band.end, bg);
     }
     for (let p = 0; p < L; p++) bg[p] /= bgRowCount;
     bg = boxcar(bg, opts.backgroundSmoothPx);

@@ -113,6 +113,23 @@ function sumAndMin(data: Float32Array, base: number, W: number): number {
   return s0 + s1 + s2 + s3;
 }
 
+/** {@link sumAndMin} without the minimum (the same four partial sums, so the same sum). */
+function sumOnly(data: Float32Array, base: number, W: number): number {
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let c = 0;
+  for (; c + 3 < W; c += 4) {
+    s0 += data[base + c];
+    s1 += data[base + c + 1];
+    s2 += data[base + c + 2];
+    s3 += data[base + c + 3];
+  }
+  for (; c < W; c++) s0 += data[base + c];
+  return s0 + s1 + s2 + s3;
+}
+
 /** One pass over the whole frame: the dark-subtracted spatial profile and the bad-pixel census. */
 export interface FrameCensus {
   /** Mean over the valid spectral pixels of each spatial row (dark-subtracted); NaN for a row with none. */
@@ -149,6 +166,9 @@ export function frameCensus(frame: Frame, dark: Frame | undefined, geometry: Axi
           if (raw < mn) mn = raw;
           sum += raw - darkData[base + c];
         }
+      } else if (minRaw < saturationLevel) {
+        // A pixel below the level is already found: "all saturated" is settled, the minimum unneeded.
+        sum = sumOnly(data, base, W);
       } else {
         sum = sumAndMin(data, base, W);
         mn = kernelMin;

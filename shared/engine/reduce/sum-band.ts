@@ -1,5 +1,5 @@
 import type { LineShape, SpatialBand } from '../types.ts';
-import type { RowCleaner } from './outliers.ts';
+import { GROUP_ROWS, type RowCleaner } from './outliers.ts';
 
 /** Inputs of {@link sumBand}. */
 export interface SumBandInput {
@@ -73,6 +73,167 @@ function fusedRow(
 }
 
 /**
+ * Four unshifted band rows s … s + 3 (`r0`…`r3`) in one pass, each pixel through the same first
+ * screen as {@link fusedRow}: a pixel whose four rows all clear it is stored and summed at once,
+ * rows in order (so each sum sees the same additions in the same order as row by row); the
+ * others go to `candidates` for {@link sumGroup}. Neighbour rows are shared between the four
+ * (`am`, `bm`: rows s − 2, s − 1; `r4`: row s + 4), and the running sums are loaded and stored
+ * once per four rows instead of once per row.
+ */
+function fusedGroup(
+  am: Float32Array,
+  bm: Float32Array,
+  r0: Float32Array,
+  r1: Float32Array,
+  r2: Float32Array,
+  r3: Float32Array,
+  r4: Float32Array,
+  raw0: Float32Array,
+  raw1: Float32Array,
+  raw2: Float32Array,
+  raw3: Float32Array,
+  screen: number,
+  background: Float64Array,
+  floorVariance: Float64Array,
+  gain: number,
+  level: number,
+  band: Float32Array,
+  out: number,
+  counts: Float64Array,
+  variance: Float64Array,
+  saturated: Uint8Array,
+  candidates: Int32Array,
+): number {
+  const L = r0.length;
+  const halfGain = gain * 0.5;
+  const rawIsValue = raw0 === r0 && raw1 === r1 && raw2 === r2 && raw3 === r3;
+  let n = 0;
+  for (let p = 0; p < L; p++) {
+    const v0 = r0[p];
+    const v1 = r1[p];
+    const v2 = r2[p];
+    const v3 = r3[p];
+    const vb = bm[p];
+    const t0 = v0 - screen;
+    const t1 = v1 - screen;
+    const t2 = v2 - screen;
+    const t3 = v3 - screen;
+    // Row s + j against rows s + j − 2, s + j − 1 and s + j + 1, as fusedRow.
+    if (
+      t0 <= vb && t0 <= v1 && t0 <= am[p] &&
+      t1 <= v0 && t1 <= v2 && t1 <= vb &&
+      t2 <= v1 && t2 <= v3 && t2 <= v0 &&
+      t3 <= v2 && t3 <= r4[p] && t3 <= v1
+    ) {
+      const bp = background[p];
+      const fp = floorVariance[p];
+      const d0 = v0 - bp;
+      const d1 = v1 - bp;
+      const d2 = v2 - bp;
+      const d3 = v3 - bp;
+      band[out + p] = d0;
+      band[out + L + p] = d1;
+      band[out + 2 * L + p] = d2;
+      band[out + 3 * L + p] = d3;
+      counts[p] = counts[p] + d0 + d1 + d2 + d3;
+      variance[p] =
+        variance[p] +
+        (halfGain * (d0 + Math.abs(d0)) + fp) +
+        (halfGain * (d1 + Math.abs(d1)) + fp) +
+        (halfGain * (d2 + Math.abs(d2)) + fp) +
+        (halfGain * (d3 + Math.abs(d3)) + fp);
+      // Without a dark frame the raw rows are the value rows: compare the values already loaded.
+      if (rawIsValue ? v0 >= level || v1 >= level || v2 >= level || v3 >= level : raw0[p] >= level || raw1[p] >= level || raw2[p] >= level || raw3[p] >= level) {
+        saturated[p] = 1;
+      }
+    } else {
+      candidates[n++] = p;
+    }
+  }
+  return n;
+}
+
+/**
+ * Rows s … s + GROUP_ROWS − 1 (prepared by `cleaner.loadGroup(s)`) folded into the band and the
+ * sums: {@link fusedGroup}, then the pixels it left, row by row through the cleaner, their
+ * values held in `pending` (GROUP_ROWS · L) so that each sum still adds the rows in order.
+ * Returns how many pixels the cleaner replaced.
+ */
+function sumGroup(
+  cleaner: RowCleaner,
+  s: number,
+  background: Float64Array,
+  floorVariance: Float64Array,
+  gain: number,
+  level: number,
+  band: Float32Array,
+  out: number,
+  counts: Float64Array,
+  variance: Float64Array,
+  saturated: Uint8Array,
+  candidates: Int32Array,
+  pending: Float64Array,
+): number {
+  const rows = cleaner.groupRows;
+  const raws = cleaner.groupRaw;
+  const screen = cleaner.screenThreshold;
+  const L = background.length;
+  const n = fusedGroup(
+    rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6], raws[0], raws[1], raws[2], raws[3],
+    screen, background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates,
+  );
+  if (n === 0) return 0;
+  let rejected = 0;
+  for (let j = 0; j < GROUP_ROWS; j++) {
+    // Row s + j is rows[j + 2]; its screen neighbours rows[j], rows[j + 1], rows[j + 3].
+    const cur = rows[j + 2];
+    const a = rows[j];
+    const b = rows[j + 1];
+    const c = rows[j + 3];
+    const raw = raws[j];
+    const rowOut = out + j * L;
+    const pend = j * L;
+    let loaded = false;
+    for (let k = 0; k < n; k++) {
+      const p = candidates[k];
+      const v = cur[p];
+      const t = v - screen;
+      let d: number;
+      let hot = false;
+      if (t <= b[p] && t <= c[p] && t <= a[p]) {
+        d = v - background[p];
+      } else {
+        if (!loaded) {
+          cleaner.load(s + j);
+          loaded = true;
+        }
+        d = cleaner.resolve(p) - background[p];
+        if (cleaner.wasReplaced) rejected++;
+        hot = cleaner.wasHot;
+      }
+      pending[pend + k] = d;
+      band[rowOut + p] = d;
+      if (raw[p] >= level && !hot) saturated[p] = 1;
+    }
+  }
+  const halfGain = gain * 0.5;
+  for (let k = 0; k < n; k++) {
+    const p = candidates[k];
+    const fp = floorVariance[p];
+    let sum = counts[p];
+    let vsum = variance[p];
+    for (let j = 0; j < GROUP_ROWS; j++) {
+      const d = pending[j * L + k];
+      sum += d;
+      vsum += halfGain * (d + Math.abs(d)) + fp;
+    }
+    counts[p] = sum;
+    variance[p] = vsum;
+  }
+  return rejected;
+}
+
+/**
  * Background subtraction, tilt/curvature correction and summation of the signal band, in one
  * pass over its rows (each row is cleaned, then folded into the sums while it is in cache).
  *
@@ -99,10 +260,23 @@ export function sumBand(input: SumBandInput): SumBandResult {
   const candidates = new Int32Array(L);
   const level = saturationLevel;
   let rejected = 0;
-  for (let r = 0; r < nRows; r++) {
+  const shiftAt = (r: number) => {
     const o = signal.start + r - centre;
-    const shift = lineShape.tiltPxPerPx * o + lineShape.curvaturePxPerPx2 * o * o;
+    return lineShape.tiltPxPerPx * o + lineShape.curvaturePxPerPx2 * o * o;
+  };
+  const unshiftedFrom = (r: number) => {
+    for (let j = 1; j < GROUP_ROWS; j++) if (shiftAt(r + j) !== 0) return false;
+    return true;
+  };
+  const pending = new Float64Array(GROUP_ROWS * L);
+  for (let r = 0; r < nRows; r++) {
+    const shift = shiftAt(r);
     const out = r * L;
+    if (shift === 0 && r + GROUP_ROWS <= nRows && unshiftedFrom(r) && cleaner.loadGroup(signal.start + r)) {
+      rejected += sumGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates, pending);
+      r += GROUP_ROWS - 1;
+      continue;
+    }
     if (shift === 0 && cleaner.load(signal.start + r)) {
       // The common row, in one pass: the cleaner's first screen inline, pixels it clears summed
       // at once, the rest resolved afterwards. Each pixel still gets one addition per row, in
