@@ -29,6 +29,7 @@ import { createLocalStore } from './storage/local-store.ts';
 import type { FrameStore } from './storage/frame-store.ts';
 import { frameSpectraRouter, instrumentSpectraRouter, runsRouter } from './modules/spectra/routes.ts';
 import { instrumentSpectraListRouter } from './modules/spectra-list/routes.ts';
+import { instrumentRunsListRouter } from './modules/runs/routes.ts';
 import { dbSources } from './modules/spectra/sources.ts';
 import type { ApplyQueue } from './modules/runs/queue.ts';
 import { unavailableQueue } from './modules/runs/unavailable-queue.ts';
@@ -105,6 +106,7 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/frames', frameSpectraRouter(spectraDeps));
   app.use('/api/instruments', instrumentSpectraRouter(spectraDeps));
   app.use('/api/instruments', instrumentSpectraListRouter(db));
+  app.use('/api/instruments', instrumentRunsListRouter(db));
   app.use('/api/runs', runsRouter(spectraDeps));
   app.use('/api', apiNotFound);
 

@@ -48,6 +48,8 @@ export const paths = {
   frameSpectrum: (frameId: string, version?: number, filterCorrection = false) => `/api/frames/${enc(frameId)}/spectrum${spectrumQuery(version, filterCorrection)}`,
   frameSpectrumCsv: (frameId: string, version?: number, filterCorrection = false) => `/api/frames/${enc(frameId)}/spectrum.csv${spectrumQuery(version, filterCorrection)}`,
   instrumentRuns: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/runs`,
+  /** GET: the instrument's recent runs, newest first (POST to the same path starts one). */
+  instrumentRunsList: (instrumentId: string, limit?: number) => `/api/instruments/${enc(instrumentId)}/runs${limit !== undefined ? `?limit=${limit}` : ''}`,
   instrumentReapply: (instrumentId: string) => `/api/instruments/${enc(instrumentId)}/spectra/reapply`,
   /** GET: the instrument's spectra (frame, version, stale, drift flag); `stale` filters. */
   instrumentSpectra: (instrumentId: string, stale?: boolean) => `/api/instruments/${enc(instrumentId)}/spectra${stale !== undefined ? `?stale=${stale}` : ''}`,

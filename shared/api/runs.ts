@@ -55,6 +55,28 @@ export interface Run {
   items: RunItem[];
 }
 
+/** GET /api/instruments/:instrumentId/runs?limit=N — the newest runs first. */
+export const listRunsQuerySchema = z.object({
+  limit: z.coerce.number({ error: 'limit must be a whole number' }).int({ message: 'limit must be a whole number' }).min(1, { message: 'limit must be ≥ 1' }).max(200, { message: 'limit must be ≤ 200' }).default(20),
+});
+
+/** One run in the instrument's list: its counts without the items. */
+export interface RunSummary {
+  id: string;
+  kind: 'apply' | 'reapply';
+  state: RunState;
+  version: number | 'valid';
+  scanVariable: string | null;
+  total: number;
+  done: number;
+  failed: number;
+  cancelled: number;
+  createdBy: string;
+  createdByName: string;
+  createdAt: string;
+  finishedAt: string | null;
+}
+
 export const scanQuerySchema = z.object({
   period: z
     .union([z.literal('detect'), z.coerce.number({ error: 'period must be a positive number or "detect"' }).positive({ message: 'period must be > 0' })])

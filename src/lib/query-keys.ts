@@ -46,6 +46,8 @@ export const queryKeys = {
   runs: {
     all: ['runs'] as const,
     detail: (runId: string) => [...queryKeys.runs.all, 'detail', runId] as const,
+    /** An instrument's newest `limit` runs (counts only, no items). */
+    list: (instrumentId: string, limit: number) => [...queryKeys.runs.all, 'list', instrumentId, limit] as const,
     scan: (runId: string, period: number | 'detect' | undefined) => [...queryKeys.runs.all, 'scan', runId, period ?? 'run'] as const,
   },
   drift: {

@@ -2,7 +2,7 @@
 import { and, asc, count, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { RunItemState } from '../../../shared/api/runs.ts';
 import type { Executor } from '../../db/client.ts';
-import { runItems, runs, type RunItemRow, type RunRow } from '../../db/schema/index.ts';
+import { runItems, runs, users, type RunItemRow, type RunRow } from '../../db/schema/index.ts';
 
 export async function insertRun(db: Executor, values: typeof runs.$inferInsert): Promise<RunRow> {
   const [row] = await db.insert(runs).values(values).returning();
@@ -25,6 +25,27 @@ export function listRunItems(db: Executor, runId: string): Promise<RunItemRow[]>
 
 export function listRunsOfInstrument(db: Executor, instrumentId: string, limit = 50): Promise<RunRow[]> {
   return db.select().from(runs).where(eq(runs.instrumentId, instrumentId)).orderBy(desc(runs.createdAt)).limit(limit);
+}
+
+/** The newest runs with their item counts and the starter's name, in one query (no per-run lookups). */
+export function listRunSummaries(db: Executor, instrumentId: string, limit: number) {
+  const countOf = (state: RunItemState) => sql<number>`count(${runItems.id}) FILTER (WHERE ${runItems.state} = ${state})::int`;
+  return db
+    .select({
+      run: runs,
+      createdByName: users.name,
+      total: sql<number>`count(${runItems.id})::int`,
+      done: countOf('done'),
+      failed: countOf('failed'),
+      cancelled: countOf('cancelled'),
+    })
+    .from(runs)
+    .innerJoin(users, eq(users.id, runs.createdBy))
+    .leftJoin(runItems, eq(runItems.runId, runs.id))
+    .where(eq(runs.instrumentId, instrumentId))
+    .groupBy(runs.id, users.name)
+    .orderBy(desc(runs.createdAt), desc(runs.id))
+    .limit(limit);
 }
 
 export async function findRunItem(db: Executor, itemId: string) {

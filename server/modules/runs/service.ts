@@ -7,11 +7,12 @@
 import { randomUUID } from 'node:crypto';
 import { analyseScan, type ScanFrame } from '../../../shared/analysis/scan.ts';
 import type { SinusoidOptions } from '../../../shared/analysis/sinusoid.ts';
-import type { Run, RunState, ScanResponse } from '../../../shared/api/runs.ts';
+import type { Run, RunState, RunSummary, ScanResponse } from '../../../shared/api/runs.ts';
 import type { SessionUser } from '../../../shared/api/session.ts';
 import { EngineError } from '../../../shared/engine/errors.ts';
 import type { createRunSchema } from '../../../shared/api/runs.ts';
 import { instrumentAccess, type InstrumentAccess } from '../../auth/access.ts';
+import type { Executor } from '../../db/client.ts';
 import type { RunItemRow, RunRow } from '../../db/schema/index.ts';
 import { ForbiddenError, HttpError, NotFoundError, ValidationError } from '../../lib/errors.ts';
 import { recordAudit } from '../audit/service.ts';
@@ -31,6 +32,7 @@ import {
   insertRun,
   insertRunItems,
   listRunItems,
+  listRunSummaries,
   markRunRunning,
   requeueFailedItems,
   setRunState,
@@ -171,6 +173,27 @@ async function runWithAccess(deps: RunsDeps, user: SessionUser, runId: string) {
 export async function getRun(deps: RunsDeps, user: SessionUser, runId: string): Promise<Run> {
   const { run } = await runWithAccess(deps, user, runId);
   return toRun(run, await listRunItems(deps.db, runId));
+}
+
+/** Every member (viewers too) reads the instrument's recent runs; non-members get 404 from instrumentAccess. */
+export async function listRuns(db: Executor, user: SessionUser, instrumentId: string, limit: number): Promise<RunSummary[]> {
+  await instrumentAccess(db, user, instrumentId);
+  const rows = await listRunSummaries(db, instrumentId, limit);
+  return rows.map(({ run, createdByName, total, done, failed, cancelled }) => ({
+    id: run.id,
+    kind: run.kind,
+    state: run.state,
+    version: run.versionNumber ?? 'valid',
+    scanVariable: run.scanVariable,
+    total,
+    done,
+    failed,
+    cancelled,
+    createdBy: run.createdBy,
+    createdByName,
+    createdAt: run.createdAt.toISOString(),
+    finishedAt: run.finishedAt?.toISOString() ?? null,
+  }));
 }
 
 /** Queued items are cancelled (their jobs too); running ones finish. */

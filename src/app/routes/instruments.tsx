@@ -4,6 +4,32 @@ import { useInstruments } from '@/features/instruments/api/get-instruments';
 import { InstrumentsTable } from '@/features/instruments/components/instruments-table';
 import { EmptyState, Loading, PageHeader } from '@/components/page';
 import { ErrorAlert } from '@/components/alert';
+import { useVersions } from '@/features/versions/api/get-versions';
+import { calibrationStatus } from '@/features/versions/lib/calibration-status';
+import { useInstrumentSpectra } from '@/features/spectra/api/get-instrument-spectra';
+import { driftFlaggedFrameCount } from '@/features/spectra/lib/drift-flags';
+
+/**
+ * "version N in force · M in review · K drift flags" for one instrument. It reads the same two
+ * queries as the instrument page (versions, spectra list), so opening an instrument afterwards
+ * costs no new requests for them.
+ */
+function InstrumentStatusLine({ instrumentId }: { instrumentId: string }) {
+  const versions = useVersions(instrumentId);
+  const spectra = useInstrumentSpectra(instrumentId);
+  if (versions.isPending || spectra.isPending) return <span>…</span>;
+  if (versions.isError || spectra.isError) return <span>status unavailable</span>;
+  const { inForce, inReview } = calibrationStatus(versions.data, Date.now());
+  const flags = driftFlaggedFrameCount(spectra.data.items);
+  return (
+    <span data-testid="instrument-status">
+      {inForce ? `version ${inForce.number} in force` : 'no version in force'} · {inReview.length} in review ·{' '}
+      <span className={flags > 0 ? 'font-medium text-red-700' : ''}>
+        {flags} drift flag{flags === 1 ? '' : 's'}
+      </span>
+    </span>
+  );
+}
 
 /** /instruments: the instruments you can see, and "New instrument". */
 export function InstrumentsRoute() {
@@ -29,7 +55,7 @@ export function InstrumentsRoute() {
       ) : instruments.data.length === 0 ? (
         <EmptyState>No instruments yet. Create one, or ask an owner to invite you to theirs.</EmptyState>
       ) : (
-        <InstrumentsTable instruments={instruments.data} isAdmin={isAdmin} />
+        <InstrumentsTable instruments={instruments.data} isAdmin={isAdmin} status={(i) => <InstrumentStatusLine instrumentId={i.id} />} />
       )}
     </>
   );

@@ -1,10 +1,14 @@
+import type { ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import type { Instrument } from '../../../../shared/api/instruments.ts';
 import { RoleBadge } from '@/components/role-badge';
 import { spectrometerSummary } from './profile-summary';
 
-/** The instrument list: name (linked), description, the user's role, the spectrometer in one line. */
-export function InstrumentsTable({ instruments, isAdmin }: { instruments: Instrument[]; isAdmin: boolean }) {
+/**
+ * The instrument list: name (linked), description, the user's role, the spectrometer in one line.
+ * `status` renders an optional line under each name (the route supplies it from other features).
+ */
+export function InstrumentsTable({ instruments, isAdmin, status }: { instruments: Instrument[]; isAdmin: boolean; status?: (instrument: Instrument) => ReactNode }) {
   return (
     <div className="overflow-x-auto rounded-lg border border-slate-200 bg-white shadow-xs">
       <table className="min-w-full divide-y divide-slate-200 text-sm">
@@ -23,6 +27,7 @@ export function InstrumentsTable({ instruments, isAdmin }: { instruments: Instru
                 <Link to={`/instruments/${instrument.id}`} className="text-accent-700 hover:underline">
                   {instrument.name}
                 </Link>
+                {status ? <div className="mt-0.5 text-xs font-normal text-slate-500">{status(instrument)}</div> : null}
               </td>
               <td className="max-w-md px-4 py-3 text-slate-600">
                 <span className="line-clamp-2">{instrument.description || '—'}</span>
