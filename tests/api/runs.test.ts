@@ -102,9 +102,9 @@ describe('runs', () => {
       const dphi = Math.atan2(Math.sin(m.fit.phaseRad - 0.1 * m.harmonic), Math.cos(m.fit.phaseRad - 0.1 * m.harmonic));
       expect(Math.abs(dphi)).toBeLessThan(Math.max(0.1, 4 * m.fit.phaseSigmaRad));
     }
-    // The starter hears the run finished.
-    const notes = await t.db.select().from(mails).where(eq(mails.to, w.student.email));
-    expect(notes.filter((m) => m.subject.includes(`${n} of ${n} frames done`))).toHaveLength(1);
+    // The starter hears the run finished (the mail goes through SMTP to the sink after the run ends: wait for it).
+    const finishedMails = async () => (await t.db.select().from(mails).where(eq(mails.to, w.student.email))).filter((m) => m.subject.includes(`${n} of ${n} frames done`));
+    await expect.poll(finishedMails, { timeout: 15_000, interval: 200 }).toHaveLength(1);
   });
 
   it('a duplicated or retried job never makes a second row', async () => {
