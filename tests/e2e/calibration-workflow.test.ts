@@ -11,14 +11,11 @@
  * approved and the first shows as superseded from that time. A student cannot submit or approve,
  * a viewer cannot change anything, and a bad upload shows the engine's message and stores nothing.
  */
-import { existsSync } from 'node:fs';
-import { mkdtemp, readFile, readdir, rm, writeFile } from 'node:fs/promises';
-import { createServer } from 'node:net';
-import { tmpdir } from 'node:os';
+import { readFile, readdir, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { startServer } from '../../server/runtime.ts';
+import { startE2eServer, type E2eServer } from '../support/e2e-server.ts';
 import { createDb, createPool } from '../../server/db/client.ts';
 import { createUser } from '../../server/modules/users/service.ts';
 import { insertMembership } from '../../server/modules/members/queries.ts';
@@ -50,17 +47,6 @@ const BACKGROUND = [
   { start: 200, end: 250 },
 ];
 
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = createServer();
-    probe.once('error', reject);
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      const port = typeof address === 'object' && address ? address.port : 0;
-      probe.close(() => resolve(port));
-    });
-  });
-}
 
 async function listFiles(dir: string): Promise<string[]> {
   const out: string[] = [];
@@ -203,7 +189,7 @@ async function saveAndSubmit(page: Page, validFrom: string, note: string): Promi
 }
 
 describe('recalibration workflow in the browser', () => {
-  let server: Awaited<ReturnType<typeof startServer>>;
+  let server: E2eServer;
   let browser: LaunchedBrowser;
   let frameDir: string;
   let fileDir: string;
@@ -219,24 +205,9 @@ describe('recalibration workflow in the browser', () => {
   let version2Url = '';
 
   beforeAll(async () => {
-    if (!existsSync('dist/client/index.html')) throw new Error('dist/client is missing: run `npx vite build` first');
     const databaseUrl = inject('databaseUrl');
-    frameDir = await mkdtemp(join(tmpdir(), 'orderly-e2e-frames-'));
-    fileDir = await mkdtemp(join(tmpdir(), 'orderly-e2e-files-'));
-    const [appPort, smtpPort] = [await freePort(), await freePort()];
-    server = await startServer({
-      port: appPort,
-      host: '127.0.0.1',
-      databaseUrl,
-      appUrl: `http://127.0.0.1:${appPort}`,
-      smtpUrl: `smtp://127.0.0.1:${smtpPort}`,
-      mailSink: true,
-      staticDir: 'dist/client',
-      storageDir: fileDir,
-      frameStorageDir: frameDir,
-      frameStorage: 'local',
-      sessionSecret: 'e2e-session-secret-not-for-production',
-    });
+    server = await startE2eServer(databaseUrl, 'workflow');
+    ({ frameDir, fileDir } = server);
     pool = createPool(databaseUrl, 2);
     const db = createDb(pool);
 
@@ -289,7 +260,6 @@ describe('recalibration workflow in the browser', () => {
     await browser?.close();
     await pool?.end();
     await server?.close();
-    for (const dir of [frameDir, fileDir]) if (dir) await rm(dir, { recursive: true, force: true });
   });
 
   it('a scientist uploads frames, draws the regions, pins an order on an ambiguous run, saves and submits', async () => {

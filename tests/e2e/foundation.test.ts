@@ -8,14 +8,9 @@
  * scientist. A viewer then sees no edit or invite controls, and the server refuses the edit
  * anyway. All people, addresses and instrument values are invented.
  */
-import { existsSync } from 'node:fs';
-import { mkdtemp, rm } from 'node:fs/promises';
-import { createServer } from 'node:net';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { startServer } from '../../server/runtime.ts';
+import { startE2eServer, type E2eServer } from '../support/e2e-server.ts';
 import { createDb, createPool } from '../../server/db/client.ts';
 import { createUser } from '../../server/modules/users/service.ts';
 import { findUserByEmail } from '../../server/modules/users/queries.ts';
@@ -27,18 +22,6 @@ const INVITEE = { email: 'e2e-scientist@example.test', password: 'e2e-scientist-
 const VIEWER = { email: 'e2e-viewer@example.test', password: 'e2e-viewer-password', name: 'Vera Viewer (invented)' };
 const INSTRUMENT = 'E2E flat-field XUV (invented)';
 
-/** A TCP port nobody listens on right now (the mail sink and the app each get one). */
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = createServer();
-    probe.once('error', reject);
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      const port = typeof address === 'object' && address ? address.port : 0;
-      probe.close(() => resolve(port));
-    });
-  });
-}
 
 /** The text of the message a form field points at through aria-describedby. */
 async function fieldMessage(page: Page, label: RegExp): Promise<string> {
@@ -57,28 +40,14 @@ async function signIn(page: Page, baseUrl: string, who: { email: string; passwor
 }
 
 describe('foundation in the browser', () => {
-  let server: Awaited<ReturnType<typeof startServer>>;
+  let server: E2eServer;
   let browser: LaunchedBrowser;
-  let storageDir: string;
   let pool: ReturnType<typeof createPool>;
   let instrumentId = '';
 
   beforeAll(async () => {
-    if (!existsSync('dist/client/index.html')) throw new Error('dist/client is missing: run `npx vite build` first');
     const databaseUrl = inject('databaseUrl');
-    storageDir = await mkdtemp(join(tmpdir(), 'orderly-e2e-storage-'));
-    const [appPort, smtpPort] = [await freePort(), await freePort()];
-    server = await startServer({
-      port: appPort,
-      host: '127.0.0.1',
-      databaseUrl,
-      appUrl: `http://127.0.0.1:${appPort}`,
-      smtpUrl: `smtp://127.0.0.1:${smtpPort}`,
-      mailSink: true,
-      staticDir: 'dist/client',
-      storageDir,
-      sessionSecret: 'e2e-session-secret-not-for-production',
-    });
+    server = await startE2eServer(databaseUrl, 'foundation');
     pool = createPool(databaseUrl, 2);
     const db = createDb(pool);
     await createUser(db, { ...ADMIN, isAdmin: true });
@@ -89,7 +58,6 @@ describe('foundation in the browser', () => {
     await browser?.close();
     await pool?.end();
     await server?.close();
-    if (storageDir) await rm(storageDir, { recursive: true, force: true });
   });
 
   it('admin creates an instrument, invites a scientist by mail, and the invitee joins as scientist', async () => {

@@ -16,14 +16,11 @@
  * start uses version 2, the older one keeps version 1. Frames with the camera moved two more
  * pixels raise the drift flag and one notice; the notices arrive in the Outbox.
  */
-import { existsSync } from 'node:fs';
-import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
-import { createServer } from 'node:net';
-import { tmpdir } from 'node:os';
+import { readFile, rm, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { startServer } from '../../server/runtime.ts';
+import { startE2eServer, type E2eServer } from '../support/e2e-server.ts';
 import { createDb, createPool } from '../../server/db/client.ts';
 import { createUser } from '../../server/modules/users/service.ts';
 import { insertMembership } from '../../server/modules/members/queries.ts';
@@ -68,17 +65,6 @@ function tiffOf(frame: DemoFrame, options: { shiftPx?: number; noJitter?: boolea
   return encodeTiff(simulateFrame(scenario, frame.seed).frame, { bitsPerSample: 16 });
 }
 
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = createServer();
-    probe.once('error', reject);
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      const port = typeof address === 'object' && address ? address.port : 0;
-      probe.close(() => resolve(port));
-    });
-  });
-}
 
 async function signIn(page: Page, baseUrl: string, who: { email: string; password: string }) {
   await page.goto(`${baseUrl}/sign-in`);
@@ -109,7 +95,7 @@ function parseCsv(text: string): { header: string[]; rows: number[][] } {
 }
 
 describe('spectra, runs, drift and notices in the browser', () => {
-  let server: Awaited<ReturnType<typeof startServer>>;
+  let server: E2eServer;
   let browser: LaunchedBrowser;
   let frameDir: string;
   let fileDir: string;
@@ -186,26 +172,9 @@ describe('spectra, runs, drift and notices in the browser', () => {
   }
 
   beforeAll(async () => {
-    if (!existsSync('dist/client/index.html')) throw new Error('dist/client is missing: run `npx vite build` first');
     const databaseUrl = inject('databaseUrl');
-    frameDir = await mkdtemp(join(tmpdir(), 'orderly-e2e-spectra-frames-'));
-    fileDir = await mkdtemp(join(tmpdir(), 'orderly-e2e-spectra-files-'));
-    const [appPort, smtpPort] = [await freePort(), await freePort()];
-    server = await startServer({
-      port: appPort,
-      host: '127.0.0.1',
-      databaseUrl,
-      appUrl: `http://127.0.0.1:${appPort}`,
-      smtpUrl: `smtp://127.0.0.1:${smtpPort}`,
-      mailSink: true,
-      staticDir: 'dist/client',
-      storageDir: fileDir,
-      frameStorageDir: frameDir,
-      frameStorage: 'local',
-      workersInProcess: true,
-      workerConcurrency: 2,
-      sessionSecret: 'e2e-session-secret-not-for-production',
-    });
+    server = await startE2eServer(databaseUrl, 'spectra', { workersInProcess: true, workerConcurrency: 2 });
+    ({ frameDir, fileDir } = server);
     base = server.url;
     pool = createPool(databaseUrl, 2);
     const db = createDb(pool);
