@@ -6,9 +6,7 @@
  */
 import { pathToFileURL } from 'node:url';
 import { and, eq, sql } from 'drizzle-orm';
-import type { InstrumentProfileInput } from '../../shared/api/instrument-profile.ts';
 import { instrumentProfileSchema } from '../../shared/api/instrument-profile.ts';
-import type { Role } from '../../shared/api/members.ts';
 import { createDb, createPool, type Db } from '../db/client.ts';
 import { runMigrations } from '../db/migrate.ts';
 import { instruments, memberships, users } from '../db/schema/index.ts';
@@ -16,6 +14,7 @@ import { hashPassword } from '../auth/password.ts';
 import { loadConfig } from '../config.ts';
 import { frameStoreFromConfig } from '../storage/from-config.ts';
 import { seedDemoSpectra, seedDemoStories } from './demo/seed-story.ts';
+import { demoInstruments } from './demo/instruments.ts';
 import { createMailer } from '../mail/mailer.ts';
 import { startMailSink } from '../mail/sink.ts';
 import { pgBossQueue, startBoss } from '../modules/runs/queue.ts';
@@ -28,54 +27,6 @@ export const demoAccounts = [
   { email: 'student@orderly.test', password: 'student-demo-pass', name: 'Sten Student (demo)', isAdmin: false },
   { email: 'viewer@orderly.test', password: 'viewer-demo-pass', name: 'Vera Viewer (demo)', isAdmin: false },
 ] as const;
-
-/**
- * Nominal profiles, invented for the demo but of realistic size. XUV: a 1200 l/mm flat-field
- * grazing-incidence grating at 87° incidence, camera 235 mm away, 2048 × 13.5 µm pixels; the
- * central ray at β = 77.1° gives about 10–32 nm across the chip, wavelength falling with pixel.
- * VUV: a 300 l/mm normal-incidence grating at 10°, 1 m to the camera, about 44–136 nm (harmonics 7–17 of 800 nm).
- */
-export const demoInstruments: { name: string; description: string; profile: InstrumentProfileInput; members: Partial<Record<(typeof demoAccounts)[number]['email'], Role>> }[] = [
-  {
-    name: 'XUV flat-field spectrometer (demo)',
-    description: 'Invented demo instrument of the fictional Lindqvist Attosecond Lab: grazing-incidence flat-field spectrometer behind the HHG gas cell.',
-    profile: {
-      spectralAxis: 'x',
-      grooveDensityPerMm: 1200,
-      incidenceAngleDeg: 87,
-      detectorDistanceMm: 235,
-      pixelPitchUm: 13.5,
-      wavelengthIncreasesWithPixel: false,
-      detectorCenterPixel: 1023.5,
-      detectorAngleDeg: 77.1,
-      pixelCount: 2048,
-      notes: 'Invented demo data: nominal values only, not a real instrument.',
-    },
-    members: {
-      'owner@orderly.test': 'owner',
-      'scientist@orderly.test': 'scientist',
-      'student@orderly.test': 'student',
-      'viewer@orderly.test': 'viewer',
-    },
-  },
-  {
-    name: 'VUV normal-incidence spectrometer (demo)',
-    description: 'Invented demo instrument of the fictional Lindqvist Attosecond Lab: 1 m normal-incidence spectrometer for low harmonics.',
-    profile: {
-      spectralAxis: 'x',
-      grooveDensityPerMm: 300,
-      incidenceAngleDeg: 10,
-      detectorDistanceMm: 1000,
-      pixelPitchUm: 13.5,
-      wavelengthIncreasesWithPixel: true,
-      detectorCenterPixel: 1023.5,
-      detectorAngleDeg: 8.43,
-      pixelCount: 2048,
-      notes: 'Invented demo data: nominal values only, not a real instrument.',
-    },
-    members: { 'owner@orderly.test': 'owner', 'scientist@orderly.test': 'scientist' },
-  },
-];
 
 /** Insert whatever of the demo is missing; returns how many rows were added. */
 export async function seedDemo(db: Db): Promise<{ users: number; instruments: number; memberships: number }> {

@@ -15,6 +15,7 @@
  */
 import type { SimScenario } from '../../../shared/engine/simulate/index.ts';
 import type { GratingGeometry, InstrumentProfile, Parity } from '../../../shared/engine/types.ts';
+import { demoInstruments } from './instruments.ts';
 
 /** Metadata a frame is stored with (the upload route's fields). */
 export interface DemoFrameMeta {
@@ -76,18 +77,15 @@ const CAMERA = {
   bitDepth: 16 as const,
 };
 
-const XUV_NOMINAL: InstrumentProfile & { detectorAngleDeg: number; detectorCenterPixel: number } = {
-  name: 'XUV flat-field spectrometer (demo)',
-  spectralAxis: 'x',
-  grooveDensityPerMm: 1200,
-  incidenceAngleDeg: 87,
-  detectorDistanceMm: 235,
-  pixelPitchUm: 13.5,
-  wavelengthIncreasesWithPixel: false,
-  detectorCenterPixel: 1023.5,
-  detectorAngleDeg: 77.1,
-  pixelCount: 2048,
-};
+/** The engine's view of a demo instrument: its stored nominal profile with the instrument's name. */
+function nominalProfile(index: number): InstrumentProfile & { detectorAngleDeg: number; detectorCenterPixel: number } {
+  const demo = demoInstruments[index]!;
+  const p = demo.profile;
+  if (p.detectorAngleDeg === undefined || p.detectorCenterPixel === undefined) throw new Error(`demo instrument ${demo.name} needs its detector angle and centre`);
+  return { ...p, name: demo.name, detectorAngleDeg: p.detectorAngleDeg, detectorCenterPixel: p.detectorCenterPixel };
+}
+
+const XUV_NOMINAL = nominalProfile(0);
 
 /** The true geometry in each epoch: small realignment offsets from the nominal profile. */
 const XUV_TRUE: Record<'v1' | 'v2' | 'v3' | 'moved', GratingGeometry> = {
@@ -168,18 +166,8 @@ function delayScanFrame(k: number): DemoFrame {
 
 /** VUV normal-incidence story: low harmonics of 800 nm in argon (7th–15th), no filter. */
 function vuvStory(): DemoInstrumentStory {
-  const nominal: InstrumentProfile & { detectorAngleDeg: number; detectorCenterPixel: number } = {
-    name: 'VUV normal-incidence spectrometer (demo)',
-    spectralAxis: 'x',
-    grooveDensityPerMm: 300,
-    incidenceAngleDeg: 10,
-    detectorDistanceMm: 1000,
-    pixelPitchUm: 13.5,
-    wavelengthIncreasesWithPixel: true,
-    detectorCenterPixel: 1023.5,
-    detectorAngleDeg: 8.43,
-    pixelCount: 2048,
-  };
+  const nominal = nominalProfile(1);
+
   const takenAt = '2026-10-12T10:30:00.000Z';
   const scenario: SimScenario = {
     ...CAMERA,
