@@ -15,7 +15,7 @@ import { readFile, readdir, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { startE2eServer, type E2eServer } from '../support/e2e-server.ts';
+import { signIn, signOut, startE2eServer, type E2eServer } from '../support/e2e-server.ts';
 import { createDb, createPool } from '../../server/db/client.ts';
 import { createUser } from '../../server/modules/users/service.ts';
 import { insertMembership } from '../../server/modules/members/queries.ts';
@@ -79,19 +79,6 @@ function pinnableLine(frame: Frame, truth: SimTruth, s: SimScenario) {
     if (pinned.status === 'unique') return line;
   }
   throw new Error('no single true pin makes the engine decide this frame');
-}
-
-async function signIn(page: Page, baseUrl: string, who: { email: string; password: string }) {
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(who.email);
-  await page.getByLabel('Password').fill(who.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: 'Instruments', exact: true }).waitFor();
-}
-
-async function signOut(page: Page) {
-  await page.getByRole('button', { name: 'Sign out' }).first().click();
-  await page.waitForURL(/\/sign-in/);
 }
 
 /** A JSON call from the signed-in page (cookie + CSRF), for checking that the server refuses. */

@@ -10,7 +10,7 @@
  */
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { startE2eServer, type E2eServer } from '../support/e2e-server.ts';
+import { signIn, startE2eServer, type E2eServer } from '../support/e2e-server.ts';
 import { createDb, createPool } from '../../server/db/client.ts';
 import { createUser } from '../../server/modules/users/service.ts';
 import { findUserByEmail } from '../../server/modules/users/queries.ts';
@@ -29,14 +29,6 @@ async function fieldMessage(page: Page, label: RegExp): Promise<string> {
   if (!id) return '';
   // React's useId ids hold characters CSS selectors would need escaped; look the id up directly.
   return page.evaluate((describedBy) => document.getElementById(describedBy)?.textContent ?? '', id);
-}
-
-async function signIn(page: Page, baseUrl: string, who: { email: string; password: string }) {
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(who.email);
-  await page.getByLabel('Password').fill(who.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: 'Instruments', exact: true }).waitFor();
 }
 
 describe('foundation in the browser', () => {

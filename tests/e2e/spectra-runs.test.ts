@@ -20,7 +20,7 @@ import { readFile, rm, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { startE2eServer, type E2eServer } from '../support/e2e-server.ts';
+import { signIn, signOut, startE2eServer, type E2eServer } from '../support/e2e-server.ts';
 import { createDb, createPool } from '../../server/db/client.ts';
 import { createUser } from '../../server/modules/users/service.ts';
 import { insertMembership } from '../../server/modules/members/queries.ts';
@@ -65,19 +65,6 @@ function tiffOf(frame: DemoFrame, options: { shiftPx?: number; noJitter?: boolea
   return encodeTiff(simulateFrame(scenario, frame.seed).frame, { bitsPerSample: 16 });
 }
 
-
-async function signIn(page: Page, baseUrl: string, who: { email: string; password: string }) {
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(who.email);
-  await page.getByLabel('Password').fill(who.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: 'Instruments', exact: true }).waitFor();
-}
-
-async function signOut(page: Page) {
-  await page.getByRole('button', { name: 'Sign out' }).first().click();
-  await page.waitForURL(/\/sign-in/);
-}
 
 /** The signed-in page's own GET (same cookie the client uses). */
 async function pageGet<T>(page: Page, url: string): Promise<T> {

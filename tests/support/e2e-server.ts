@@ -8,6 +8,7 @@ import { mkdtemp, rm } from 'node:fs/promises';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import type { Page } from 'playwright-core';
 import type { Config } from '../../server/config.ts';
 import { startServer } from '../../server/runtime.ts';
 
@@ -62,4 +63,19 @@ export async function startE2eServer(databaseUrl: string, name: string, override
       for (const dir of [frameDir, fileDir]) await rm(dir, { recursive: true, force: true });
     },
   };
+}
+
+/** Signs in through the form and waits for the instruments page. */
+export async function signIn(page: Page, baseUrl: string, who: { email: string; password: string }): Promise<void> {
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(who.email);
+  await page.getByLabel('Password').fill(who.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.getByRole('heading', { name: 'Instruments', exact: true }).waitFor();
+}
+
+/** Signs out from the header and waits for the sign-in page. */
+export async function signOut(page: Page): Promise<void> {
+  await page.getByRole('button', { name: 'Sign out' }).first().click();
+  await page.waitForURL(/\/sign-in/);
 }
