@@ -28,7 +28,6 @@ import { instrumentVersionsRouter, versionsRouter, workbenchRouter } from './mod
 import { createLocalStore } from './storage/local-store.ts';
 import type { FrameStore } from './storage/frame-store.ts';
 import { frameSpectraRouter, instrumentSpectraRouter, runsRouter } from './modules/spectra/routes.ts';
-import { instrumentSpectraListRouter } from './modules/spectra-list/routes.ts';
 import { instrumentRunsListRouter } from './modules/runs/routes.ts';
 import { dbSources } from './modules/spectra/sources.ts';
 import type { ApplyQueue } from './modules/runs/queue.ts';
@@ -105,7 +104,6 @@ export function createApp(deps: AppDeps): Express {
   const spectraDeps = { db, store: frameDeps.store, sources: dbSources, mailer, appUrl: config.appUrl, queue: deps.applyQueue ?? unavailableQueue };
   app.use('/api/frames', frameSpectraRouter(spectraDeps));
   app.use('/api/instruments', instrumentSpectraRouter(spectraDeps));
-  app.use('/api/instruments', instrumentSpectraListRouter(db));
   app.use('/api/instruments', instrumentRunsListRouter(db));
   app.use('/api/runs', runsRouter(spectraDeps));
   app.use('/api', apiNotFound);
