@@ -4,7 +4,7 @@
  * grating.ts's own pixelToWavelengthNm (the forward model, written with atan2/sin directly).
  */
 import { describe, expect, it } from 'vitest';
-import { calibrationDispersionNmPerPixel, evaluateCalibration, evaluateCalibrationAxes } from '../../../shared/engine/dispersion/evaluate.ts';
+import { GRATING_PARAMETERS, calibrationDispersionNmPerPixel, evaluateCalibration, evaluateCalibrationAxes, gratingWavelengthAndJacobian, type GratingParameter } from '../../../shared/engine/dispersion/evaluate.ts';
 import { pixelToWavelengthNm } from '../../../shared/engine/grating.ts';
 import type { Calibration, GratingGeometry } from '../../../shared/engine/types.ts';
 
@@ -58,6 +58,20 @@ describe('evaluateCalibrationAxes equals the separate evaluations', () => {
     for (let p = 0; p < 2048; p += 7) {
       const forward = pixelToWavelengthNm(geometry, p);
       expect(Math.abs(axes.wavelengthNm[p] - forward)).toBeLessThan(1e-12 * Math.abs(forward));
+    }
+    // The expanded quadratic form against J Σ Jᵀ written plainly over the named parameters
+    // (which the calibration lists in another order than the Jacobian), plus the scale term.
+    const names = cal.grating!.parameterNames;
+    const cov = cal.grating!.covariance;
+    const jacobian = new Float64Array(GRATING_PARAMETERS.length);
+    for (let p = 0; p < 2048; p += 5) {
+      const lambda = gratingWavelengthAndJacobian(geometry, p, jacobian);
+      const j = names.map((name) => jacobian[GRATING_PARAMETERS.indexOf(name as GratingParameter)]);
+      let v = 0;
+      for (let a = 0; a < j.length; a++) for (let b = 0; b < j.length; b++) v += j[a] * cov[a][b] * j[b];
+      const expected = Math.sqrt(v + (lambda * 2e-4) ** 2);
+      expect(Math.abs(axes.wavelengthSigmaNm[p] - expected)).toBeLessThan(1e-12 * expected);
+      expect(Math.abs(axes.dispersionNmPerPixel[p] + jacobian[4])).toBeLessThanOrEqual(1e-12 * Math.abs(jacobian[4]));
     }
   });
 

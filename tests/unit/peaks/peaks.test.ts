@@ -169,6 +169,29 @@ describe('findPeaks: spatial width, limits and empty results', () => {
     expect(Math.abs(peaks[1].spatialWidthPx - Math.sqrt(9 + 1 / 12)) / 3).toBeLessThan(0.1);
   });
 
+  it('measures wide and narrow spatial widths on a tall band (fitted in bins of rows)', () => {
+    // 1200 band rows: the wide line is fitted in bins, the narrow one at full resolution.
+    const spec: SyntheticFrameSpec = {
+      spectralLength: 160,
+      spatialLength: 1240,
+      spectralAxis: 'x',
+      spatialCentre: 620,
+      lines: [
+        { pixel: 50.5, sigmaPx: 1.4, photons: 4e6, spatialSigmaPx: 150 },
+        { pixel: 110.5, sigmaPx: 1.4, photons: 2e5, spatialSigmaPx: 4 },
+      ],
+      backgroundPhotonsPerPixel: 2,
+      readNoiseCounts: 2,
+      seed: 32,
+    };
+    const lineout = reduceFrame(syntheticFrame(spec), { spectralAxis: 'x', signal: { start: 20, end: 1220 }, background: [{ start: 0, end: 10 }, { start: 1230, end: 1240 }] });
+    const peaks = findPeaks(lineout);
+    expect(peaks.length).toBe(2);
+    // Pixel-integrated spatial profile: sigma² + 1/12 (common practice); the bins' box is taken off.
+    expect(Math.abs(peaks[0].spatialWidthPx - Math.sqrt(150 ** 2 + 1 / 12)) / 150).toBeLessThan(0.03);
+    expect(Math.abs(peaks[1].spatialWidthPx - Math.sqrt(16 + 1 / 12)) / 4).toBeLessThan(0.1);
+  });
+
   it('keeps the strongest maxPeaks', () => {
     const lines = [1000, 8000, 3000, 6000].map((area, i) => ({ pixel: 30 + 40 * i, sigmaPx: 1.5, area }));
     const { lineout } = syntheticLineout(200, lines, (e) => e + 10, 9);
