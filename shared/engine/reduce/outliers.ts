@@ -163,6 +163,28 @@ export class RowCleaner {
     return true;
   }
 
+  /** Whether hot and cosmic pixels are rejected (otherwise only NaN pixels are replaced). */
+  get rejectsHot(): boolean {
+    return this.settings.rejectHot;
+  }
+
+  /**
+   * Without hot-pixel rejection, prepares rows s … s + GROUP_ROWS − 1 alone (no neighbours are
+   * screened): {@link groupRows}[j + 2] is row s + j, {@link groupRaw}[j] its raw values. Only NaN
+   * pixels then need {@link load} and {@link resolve}. False when hot pixels are rejected.
+   */
+  loadPlainGroup(s: number): boolean {
+    const { source } = this;
+    if (this.settings.rejectHot || s < 0 || s + GROUP_ROWS > source.spatialLength) return false;
+    const L = source.spectralLength;
+    for (let j = 0; j < GROUP_ROWS; j++) {
+      this.groupRows[j + 2] = this.row(s + j);
+      const i = rowIndex(source, s + j);
+      this.groupRaw[j] = source.dark ? source.raw.subarray(i, i + L) : this.groupRows[j + 2];
+    }
+    return true;
+  }
+
   /** Cleans spatial row s into {@link values} and {@link saturated}; returns how many pixels were replaced. */
   clean(s: number): number {
     const { settings, values: out, saturated: sat } = this;

@@ -4,7 +4,7 @@ import { autoBackgroundBands, findSignalBand } from './bands.ts';
 import { noiseFloorFromRows, type SourcedBand } from './noise.ts';
 import { type ReduceOptions, resolveReduceOptions } from './options.ts';
 import { RowCleaner, bandPedestal } from './outliers.ts';
-import { type AxisGeometry, axisGeometry, frameCensus, rowSource } from './strip.ts';
+import { type AxisGeometry, axisGeometry, frameCensus, frameRefusals, rowSource } from './strip.ts';
 import { sumBand } from './sum-band.ts';
 import { addCleanRows } from './sum-rows.ts';
 
@@ -34,6 +34,19 @@ function boxcar(values: Float64Array, size: number): Float64Array {
   return out;
 }
 
+/** The frame-wide refusals: nothing but NaN, or nothing below the saturation level. */
+function refuseUnusable(frame: Frame, refusals: { allNaN: boolean; allSaturated: boolean }, saturationLevel: number): void {
+  if (refusals.allNaN) {
+    throw new EngineError('invalid_input', `Every pixel of the ${frame.width}x${frame.height} frame is NaN; there is nothing to reduce.`);
+  }
+  if (refusals.allSaturated) {
+    throw new EngineError(
+      'invalid_input',
+      `Every pixel of the ${frame.width}x${frame.height} frame is at or above the saturation level ${saturationLevel}; the exposure is unusable.`,
+    );
+  }
+}
+
 /**
  * Reduces a frame to a lineout: dark subtraction, rejection of hot/cosmic/NaN pixels in the bands,
  * background subtraction from the background bands, tilt/curvature-corrected summation of the
@@ -55,17 +68,17 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
   const opts = resolveReduceOptions(frame, options);
   const geometry = axisGeometry(frame, opts.spectralAxis);
   const L = geometry.spectralLength;
-  const census = frameCensus(frame, opts.dark, geometry, opts.saturationLevel);
-  if (census.nanCount === census.pixelCount) {
-    throw new EngineError('invalid_input', `Every pixel of the ${frame.width}x${frame.height} frame is NaN; there is nothing to reduce.`);
+  // The full census pass is for the spatial profile; with the signal band given only its two
+  // refusals are needed, and those settle at the first usable pixel.
+  let signal: SpatialBand;
+  if (opts.signal) {
+    refuseUnusable(frame, frameRefusals(frame, opts.dark, opts.saturationLevel), opts.saturationLevel);
+    signal = opts.signal;
+  } else {
+    const census = frameCensus(frame, opts.dark, geometry, opts.saturationLevel);
+    refuseUnusable(frame, { allNaN: census.nanCount === census.pixelCount, allSaturated: census.allSaturated }, opts.saturationLevel);
+    signal = findSignalBand(census.profile);
   }
-  if (census.allSaturated) {
-    throw new EngineError(
-      'invalid_input',
-      `Every pixel of the ${frame.width}x${frame.height} frame is at or above the saturation level ${opts.saturationLevel}; the exposure is unusable.`,
-    );
-  }
-  const signal = opts.signal ?? findSignalBand(census.profile);
   const background = opts.background ?? autoBackgroundBands(signal, geometry.spatialLength);
   for (const band of background) {
     if (band.start < signal.end && signal.start < band.end) {

@@ -214,3 +214,30 @@ export function frameCensus(frame: Frame, dark: Frame | undefined, geometry: Axi
   }
   return { profile, nanCount, allSaturated: minRaw >= saturationLevel, pixelCount: data.length };
 }
+
+/**
+ * The census's two refusals without its full pass, for a frame whose signal band is given (no
+ * profile needed): both stop at the first pixel that settles them, which on a usable frame is
+ * among the first. Same answers as {@link frameCensus}: every dark-subtracted pixel NaN; every
+ * non-NaN raw pixel at or above the level.
+ */
+export function frameRefusals(frame: Frame, dark: Frame | undefined, saturationLevel: number): { allNaN: boolean; allSaturated: boolean } {
+  const data = frame.data;
+  const darkData = dark?.data;
+  let allNaN = true;
+  for (let i = 0; i < data.length; i++) {
+    const v = darkData ? data[i] - darkData[i] : data[i];
+    if (v === v) {
+      allNaN = false;
+      break;
+    }
+  }
+  let allSaturated = true;
+  for (let i = 0; i < data.length; i++) {
+    if (data[i] < saturationLevel) {
+      allSaturated = false;
+      break;
+    }
+  }
+  return { allNaN, allSaturated };
+}

@@ -234,6 +234,138 @@ function sumGroup(
 }
 
 /**
+ * {@link fusedGroup} without hot-pixel rejection: four rows summed where none is NaN (a NaN
+ * poisons the sum, so one comparison per pixel finds them); pixels with a NaN in any row go to
+ * `candidates` for {@link sumPlainGroup}.
+ */
+function fusedPlainGroup(
+  r0: Float32Array,
+  r1: Float32Array,
+  r2: Float32Array,
+  r3: Float32Array,
+  raw0: Float32Array,
+  raw1: Float32Array,
+  raw2: Float32Array,
+  raw3: Float32Array,
+  background: Float64Array,
+  floorVariance: Float64Array,
+  gain: number,
+  level: number,
+  band: Float32Array,
+  out: number,
+  counts: Float64Array,
+  variance: Float64Array,
+  saturated: Uint8Array,
+  candidates: Int32Array,
+): number {
+  const L = r0.length;
+  const halfGain = gain * 0.5;
+  const rawIsValue = raw0 === r0 && raw1 === r1 && raw2 === r2 && raw3 === r3;
+  let n = 0;
+  for (let p = 0; p < L; p++) {
+    const v0 = r0[p];
+    const v1 = r1[p];
+    const v2 = r2[p];
+    const v3 = r3[p];
+    const all = v0 + v1 + v2 + v3;
+    if (all === all) {
+      const bp = background[p];
+      const fp = floorVariance[p];
+      const d0 = v0 - bp;
+      const d1 = v1 - bp;
+      const d2 = v2 - bp;
+      const d3 = v3 - bp;
+      band[out + p] = d0;
+      band[out + L + p] = d1;
+      band[out + 2 * L + p] = d2;
+      band[out + 3 * L + p] = d3;
+      counts[p] = counts[p] + d0 + d1 + d2 + d3;
+      variance[p] =
+        variance[p] +
+        (halfGain * (d0 + Math.abs(d0)) + fp) +
+        (halfGain * (d1 + Math.abs(d1)) + fp) +
+        (halfGain * (d2 + Math.abs(d2)) + fp) +
+        (halfGain * (d3 + Math.abs(d3)) + fp);
+      if (rawIsValue ? v0 >= level || v1 >= level || v2 >= level || v3 >= level : raw0[p] >= level || raw1[p] >= level || raw2[p] >= level || raw3[p] >= level) {
+        saturated[p] = 1;
+      }
+    } else {
+      candidates[n++] = p;
+    }
+  }
+  return n;
+}
+
+/**
+ * {@link sumGroup} without hot-pixel rejection (rows from `cleaner.loadPlainGroup(s)`): the
+ * pixels {@link fusedPlainGroup} left hold a NaN in some row, which the cleaner replaces; the
+ * others rows' values are taken as they are. Rows are still added in order.
+ */
+function sumPlainGroup(
+  cleaner: RowCleaner,
+  s: number,
+  background: Float64Array,
+  floorVariance: Float64Array,
+  gain: number,
+  level: number,
+  band: Float32Array,
+  out: number,
+  counts: Float64Array,
+  variance: Float64Array,
+  saturated: Uint8Array,
+  candidates: Int32Array,
+  pending: Float64Array,
+): number {
+  const rows = cleaner.groupRows;
+  const raws = cleaner.groupRaw;
+  const L = background.length;
+  const n = fusedPlainGroup(rows[2], rows[3], rows[4], rows[5], raws[0], raws[1], raws[2], raws[3], background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates);
+  if (n === 0) return 0;
+  let rejected = 0;
+  for (let j = 0; j < GROUP_ROWS; j++) {
+    const cur = rows[j + 2];
+    const raw = raws[j];
+    const rowOut = out + j * L;
+    const pend = j * L;
+    let loaded = false;
+    for (let k = 0; k < n; k++) {
+      const p = candidates[k];
+      const v = cur[p];
+      let d: number;
+      if (v === v) {
+        d = v - background[p];
+      } else {
+        if (!loaded) {
+          cleaner.load(s + j);
+          loaded = true;
+        }
+        d = cleaner.resolve(p) - background[p];
+        if (cleaner.wasReplaced) rejected++;
+      }
+      pending[pend + k] = d;
+      band[rowOut + p] = d;
+      // A replaced NaN keeps its raw saturation flag (RowCleaner.clean).
+      if (raw[p] >= level) saturated[p] = 1;
+    }
+  }
+  const halfGain = gain * 0.5;
+  for (let k = 0; k < n; k++) {
+    const p = candidates[k];
+    const fp = floorVariance[p];
+    let sum = counts[p];
+    let vsum = variance[p];
+    for (let j = 0; j < GROUP_ROWS; j++) {
+      const d = pending[j * L + k];
+      sum += d;
+      vsum += halfGain * (d + Math.abs(d)) + fp;
+    }
+    counts[p] = sum;
+    variance[p] = vsum;
+  }
+  return rejected;
+}
+
+/**
  * Background subtraction, tilt/curvature correction and summation of the signal band, in one
  * pass over its rows (each row is cleaned, then folded into the sums while it is in cache).
  *
@@ -272,6 +404,11 @@ export function sumBand(input: SumBandInput): SumBandResult {
   for (let r = 0; r < nRows; r++) {
     const shift = shiftAt(r);
     const out = r * L;
+    if (shift === 0 && r + GROUP_ROWS <= nRows && unshiftedFrom(r) && !cleaner.rejectsHot && cleaner.loadPlainGroup(signal.start + r)) {
+      rejected += sumPlainGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates, pending);
+      r += GROUP_ROWS - 1;
+      continue;
+    }
     if (shift === 0 && r + GROUP_ROWS <= nRows && unshiftedFrom(r) && cleaner.loadGroup(signal.start + r)) {
       rejected += sumGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates, pending);
       r += GROUP_ROWS - 1;

@@ -48,6 +48,22 @@ function addGroup(
   return n;
 }
 
+/** Without rejection: four rows added where none is NaN; pixels with a NaN go to `candidates`. */
+function addPlainGroup(r0: Float32Array, r1: Float32Array, r2: Float32Array, r3: Float32Array, sum: Float64Array, candidates: Int32Array): number {
+  const L = r0.length;
+  let n = 0;
+  for (let p = 0; p < L; p++) {
+    const v0 = r0[p];
+    const v1 = r1[p];
+    const v2 = r2[p];
+    const v3 = r3[p];
+    const all = v0 + v1 + v2 + v3;
+    if (all === all) sum[p] = sum[p] + v0 + v1 + v2 + v3;
+    else candidates[n++] = p;
+  }
+  return n;
+}
+
 /**
  * Adds the cleaned spatial rows [start, end) to `sum` (sum[p] += cleaned row[p], rows in order),
  * as `cleaner.clean(row)` for each row would, and returns how many pixels were replaced.
@@ -60,6 +76,36 @@ export function addCleanRows(cleaner: RowCleaner, start: number, end: number, su
   const screen = cleaner.screenThreshold;
   let rejected = 0;
   for (let s = start; s < end; s++) {
+    if (s + GROUP_ROWS <= end && !cleaner.rejectsHot && cleaner.loadPlainGroup(s)) {
+      const rows = cleaner.groupRows;
+      const n = addPlainGroup(rows[2], rows[3], rows[4], rows[5], sum, candidates);
+      for (let j = 0; j < GROUP_ROWS && n > 0; j++) {
+        const cur = rows[j + 2];
+        let loaded = false;
+        for (let k = 0; k < n; k++) {
+          const p = candidates[k];
+          const v = cur[p];
+          if (v === v) {
+            pending[j * L + k] = v;
+            continue;
+          }
+          if (!loaded) {
+            cleaner.load(s + j);
+            loaded = true;
+          }
+          pending[j * L + k] = cleaner.resolve(p);
+          if (cleaner.wasReplaced) rejected++;
+        }
+      }
+      for (let k = 0; k < n; k++) {
+        const p = candidates[k];
+        let total = sum[p];
+        for (let j = 0; j < GROUP_ROWS; j++) total += pending[j * L + k];
+        sum[p] = total;
+      }
+      s += GROUP_ROWS - 1;
+      continue;
+    }
     if (s + GROUP_ROWS <= end && cleaner.loadGroup(s)) {
       const rows = cleaner.groupRows;
       const n = addGroup(rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6], screen, sum, candidates);

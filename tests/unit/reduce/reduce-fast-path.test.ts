@@ -76,6 +76,8 @@ describe('reduceFrame: the streaming path equals the straightforward one', () =>
     ['spectral axis y', {}, { axis: 'y' }],
     ['spectral axis y with a dark frame and tilt', { ...explicitBands, lineShape: { tiltPxPerPx: -0.05, curvaturePxPerPx2: 0.001 } }, { axis: 'y', dark: true }],
     ['rejection off', { ...explicitBands, rejectOutliers: false }, {}],
+    ['rejection off with a dark frame', { ...explicitBands, rejectOutliers: false }, { dark: true }],
+    ['rejection off, automatic bands, spectral axis y', { rejectOutliers: false }, { axis: 'y' }],
     ['given read noise and gain', { ...explicitBands, readNoiseCounts: 4, gainCountsPerPhoton: 1.7, backgroundSmoothPx: 5 }, { dark: true }],
     ['a low rejection threshold', { ...explicitBands, outlierSigma: 2 }, {}],
   ])('%s', (_name, options, how) => {
