@@ -47,9 +47,14 @@ export interface Lineout {
   variance: Float64Array;
   /** 1 where any summed pixel reached the saturation level. */
   saturated: Uint8Array;
-  /** The background-subtracted, tilt-corrected signal band: `band[s * spectralLength + p]`, for spatial widths. */
+  /**
+   * The background-subtracted, tilt-corrected signal band, `band[s * spectralLength + p]`, for
+   * spatial widths: row s sums band rows s·bandBinRows … (s + 1)·bandBinRows − 1.
+   */
   band: Float32Array;
   bandRows: number;
+  /** Band rows summed in each row of `band` (binned on tall bands to keep it small); 1 when absent. */
+  bandBinRows?: number;
   signal: SpatialBand;
   background: SpatialBand[];
   lineShape: LineShape;

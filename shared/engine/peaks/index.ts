@@ -95,7 +95,7 @@ function fitCandidate(
       if (lineout.saturated[p]) saturated = true;
     }
   }
-  const spatial = lineout.band && lineout.bandRows > 0 ? spatialWidthPx(lineout.band, lineout.bandRows, n, pixel, fwhmPx) : Number.NaN;
+  const spatial = lineout.band && lineout.bandRows > 0 ? spatialWidthPx(lineout.band, lineout.bandRows, n, pixel, fwhmPx, lineout.bandBinRows ?? 1) : Number.NaN;
   return { peak: { pixel, pixelSigma, fwhmPx, amplitude, area, areaSigma, snr, spatialWidthPx: spatial, saturated } };
 }
 

@@ -10,12 +10,14 @@ const MAX_FIT_POINTS = 128;
  * spatial profile; its sigma is the RMS width. A fit is used rather than the second moment
  * because noise in the far rows dominates a raw second moment. NaN when the fit fails.
  *
- * A tall band (a 2048-row frame) is fitted in bins of w rows, at most {@link MAX_FIT_POINTS}
- * of them and never wider than a quarter of the moment estimate of the width: summing w unit-
- * spaced samples convolves the profile with a w-point box, whose variance (w² − 1)/12 is then
- * taken off the fitted σ². The bins' statistics are the rows' (counts add), the fit ~w× cheaper.
+ * Rows may come binned (`rowsPerBin` band rows summed per row of `band`, as reduce keeps tall
+ * bands), and a tall profile is fitted in coarser bins still: at most {@link MAX_FIT_POINTS} of
+ * them and never wider than a quarter of the moment estimate of the width. Summing W unit-spaced
+ * rows convolves the profile with a W-point box, whose variance (W² − 1)/12 is taken off the
+ * fitted σ². The bins' statistics are the rows' (counts add); the fit is ~W× cheaper.
+ * Returns the width in band rows.
  */
-export function spatialWidthPx(band: Float32Array, bandRows: number, spectralLength: number, pixel: number, fwhmPx: number): number {
+export function spatialWidthPx(band: Float32Array, bandRows: number, spectralLength: number, pixel: number, fwhmPx: number, rowsPerBin = 1): number {
   if (bandRows < 4 || band.length !== bandRows * spectralLength) return Number.NaN;
   const L = spectralLength;
   const lo = Math.max(0, Math.round(pixel - fwhmPx));
@@ -24,6 +26,7 @@ export function spatialWidthPx(band: Float32Array, bandRows: number, spectralLen
   const flank: number[] = [];
   for (let p = Math.round(pixel - 3 * fwhmPx); p <= Math.round(pixel - 2 * fwhmPx); p++) if (p >= 0 && p < L) flank.push(p);
   for (let p = Math.round(pixel + 2 * fwhmPx); p <= Math.round(pixel + 3 * fwhmPx); p++) if (p >= 0 && p < L) flank.push(p);
+  // x: the mean band row of each stored row.
   const x = new Float64Array(bandRows);
   const y = new Float64Array(bandRows);
   for (let s = 0; s < bandRows; s++) {
@@ -35,7 +38,7 @@ export function spatialWidthPx(band: Float32Array, bandRows: number, spectralLen
       for (const p of flank) f += band[row + p];
       sum -= (f / flank.length) * inner;
     }
-    x[s] = s;
+    x[s] = s * rowsPerBin + 0.5 * (rowsPerBin - 1);
     y[s] = sum;
   }
   let total = 0;
@@ -43,15 +46,18 @@ export function spatialWidthPx(band: Float32Array, bandRows: number, spectralLen
   for (let s = 0; s < bandRows; s++) {
     const v = Math.max(y[s], 0);
     total += v;
-    first += v * s;
+    first += v * x[s];
   }
   if (!(total > 0)) return Number.NaN;
   const mean = first / total;
   let second = 0;
-  for (let s = 0; s < bandRows; s++) second += Math.max(y[s], 0) * (s - mean) ** 2;
-  const sigma0 = Math.min(Math.max(Math.sqrt(second / total), 0.5), bandRows / 2);
-  const binRows = Math.max(1, Math.min(Math.ceil(bandRows / MAX_FIT_POINTS), Math.floor(sigma0 / 4)));
-  const binned = binRows > 1 ? binProfile(y, binRows) : { x, y };
+  for (let s = 0; s < bandRows; s++) second += Math.max(y[s], 0) * (x[s] - mean) ** 2;
+  const spanRows = bandRows * rowsPerBin;
+  const sigma0 = Math.min(Math.max(Math.sqrt(second / total), 0.5), spanRows / 2);
+  const merge = Math.max(1, Math.min(Math.ceil(bandRows / MAX_FIT_POINTS), Math.floor(sigma0 / (4 * rowsPerBin))));
+  const binned = merge > 1 ? binProfile(x, y, merge) : { x, y };
+  const boxRows = rowsPerBin * merge;
+  const boxVariance = (boxRows * boxRows - 1) / 12;
   const points = binned.x.length;
   let peakBin = 0;
   for (let i = 1; i < points; i++) if (binned.y[i] > binned.y[peakBin]) peakBin = i;
@@ -60,32 +66,35 @@ export function spatialWidthPx(band: Float32Array, bandRows: number, spectralLen
     y: binned.y,
     weight: new Float64Array(points).fill(1),
     count: 1,
-    initial: Float64Array.from([binned.y[peakBin], mean, Math.sqrt(sigma0 * sigma0 + (binRows * binRows - 1) / 12), 0, 0]),
+    initial: Float64Array.from([binned.y[peakBin], mean, Math.sqrt(sigma0 * sigma0 + boxVariance), 0, 0]),
     lower: Float64Array.from([0, -0.5, 0.3, -Infinity, -Infinity]),
-    upper: Float64Array.from([Infinity, bandRows - 0.5, bandRows, Infinity, Infinity]),
-    xRef: 0.5 * (bandRows - 1),
+    upper: Float64Array.from([Infinity, spanRows - 0.5, spanRows, Infinity, Infinity]),
+    xRef: 0.5 * (spanRows - 1),
   });
   if (!fit) return Number.NaN;
-  const boxVariance = (binRows * binRows - 1) / 12;
   const fittedSigma = fit.params[2];
-  if (!(fit.params[0] > 0) || !(fittedSigma * fittedSigma > boxVariance) || fittedSigma >= bandRows) return Number.NaN;
+  if (!(fit.params[0] > 0) || !(fittedSigma * fittedSigma > boxVariance) || fittedSigma >= spanRows) return Number.NaN;
   const sigma = Math.sqrt(fittedSigma * fittedSigma - boxVariance);
   if (!(sigma > 0.3)) return Number.NaN;
   return sigma;
 }
 
 /**
- * Sums of `binRows` consecutive rows, at the mean row of each bin; a last partial bin is
- * dropped, so every bin sums the same number of rows (equal weights stay equal).
+ * Sums of `merge` consecutive samples, at their mean position; a last partial bin is dropped,
+ * so every bin sums the same number of rows (equal weights stay equal).
  */
-function binProfile(y: Float64Array, binRows: number): { x: Float64Array; y: Float64Array } {
-  const bins = Math.floor(y.length / binRows);
+function binProfile(x: Float64Array, y: Float64Array, merge: number): { x: Float64Array; y: Float64Array } {
+  const bins = Math.floor(y.length / merge);
   const bx = new Float64Array(bins);
   const by = new Float64Array(bins);
   for (let b = 0; b < bins; b++) {
     let sum = 0;
-    for (let s = b * binRows; s < (b + 1) * binRows; s++) sum += y[s];
-    bx[b] = b * binRows + 0.5 * (binRows - 1);
+    let position = 0;
+    for (let s = b * merge; s < (b + 1) * merge; s++) {
+      sum += y[s];
+      position += x[s];
+    }
+    bx[b] = position / merge;
     by[b] = sum;
   }
   return { x: bx, y: by };

@@ -150,6 +150,7 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
     saturated: summed.saturated,
     band: summed.band,
     bandRows: summed.bandRows,
+    bandBinRows: summed.bandBinRows,
     signal: { ...signal },
     background: background.map((b) => ({ ...b })),
     lineShape: { ...opts.lineShape },

@@ -23,7 +23,9 @@ export interface SumBandResult {
   variance: Float64Array;
   saturated: Uint8Array;
   band: Float32Array;
+  /** Rows of `band`: bins of `bandBinRows` band rows each. */
   bandRows: number;
+  bandBinRows: number;
   /** Pixels the cleaner replaced in the signal band. */
   rejected: number;
 }
@@ -45,8 +47,7 @@ function fusedRow(
   floorVariance: Float64Array,
   gain: number,
   level: number,
-  band: Float32Array,
-  out: number,
+  rowBand: Float64Array,
   counts: Float64Array,
   variance: Float64Array,
   saturated: Uint8Array,
@@ -59,7 +60,7 @@ function fusedRow(
     const t = v - screen;
     if (t <= b[p] && t <= c[p] && t <= a[p]) {
       const d = v - background[p];
-      band[out + p] = d;
+      rowBand[p] = d;
       counts[p] += d;
       // max(d, 0) without a branch: d sits on both sides of 0 in the background, which would
       // make a branch unpredictable; d + |d| is exact.
@@ -99,6 +100,7 @@ function fusedGroup(
   level: number,
   band: Float32Array,
   out: number,
+  binned: boolean,
   counts: Float64Array,
   variance: Float64Array,
   saturated: Uint8Array,
@@ -131,10 +133,14 @@ function fusedGroup(
       const d1 = v1 - bp;
       const d2 = v2 - bp;
       const d3 = v3 - bp;
-      band[out + p] = d0;
-      band[out + L + p] = d1;
-      band[out + 2 * L + p] = d2;
-      band[out + 3 * L + p] = d3;
+      if (binned) {
+        band[out + p] = d0 + d1 + d2 + d3;
+      } else {
+        band[out + p] = d0;
+        band[out + L + p] = d1;
+        band[out + 2 * L + p] = d2;
+        band[out + 3 * L + p] = d3;
+      }
       counts[p] = counts[p] + d0 + d1 + d2 + d3;
       variance[p] =
         variance[p] +
@@ -168,6 +174,7 @@ function sumGroup(
   level: number,
   band: Float32Array,
   out: number,
+  binned: boolean,
   counts: Float64Array,
   variance: Float64Array,
   saturated: Uint8Array,
@@ -180,7 +187,7 @@ function sumGroup(
   const L = background.length;
   const n = fusedGroup(
     rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6], raws[0], raws[1], raws[2], raws[3],
-    screen, background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates,
+    screen, background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates,
   );
   if (n === 0) return 0;
   let rejected = 0;
@@ -212,7 +219,7 @@ function sumGroup(
         hot = cleaner.wasHot;
       }
       pending[pend + k] = d;
-      band[rowOut + p] = d;
+      if (!binned) band[rowOut + p] = d;
       if (raw[p] >= level && !hot) saturated[p] = 1;
     }
   }
@@ -222,13 +229,17 @@ function sumGroup(
     const fp = floorVariance[p];
     let sum = counts[p];
     let vsum = variance[p];
+    let binSum = 0;
     for (let j = 0; j < GROUP_ROWS; j++) {
       const d = pending[j * L + k];
       sum += d;
       vsum += halfGain * (d + Math.abs(d)) + fp;
+      // The bin's first row starts its sum (0 + d would turn −0 into +0).
+      binSum = j === 0 ? d : binSum + d;
     }
     counts[p] = sum;
     variance[p] = vsum;
+    if (binned) band[out + p] = binSum;
   }
   return rejected;
 }
@@ -253,6 +264,7 @@ function fusedPlainGroup(
   level: number,
   band: Float32Array,
   out: number,
+  binned: boolean,
   counts: Float64Array,
   variance: Float64Array,
   saturated: Uint8Array,
@@ -275,10 +287,14 @@ function fusedPlainGroup(
       const d1 = v1 - bp;
       const d2 = v2 - bp;
       const d3 = v3 - bp;
-      band[out + p] = d0;
-      band[out + L + p] = d1;
-      band[out + 2 * L + p] = d2;
-      band[out + 3 * L + p] = d3;
+      if (binned) {
+        band[out + p] = d0 + d1 + d2 + d3;
+      } else {
+        band[out + p] = d0;
+        band[out + L + p] = d1;
+        band[out + 2 * L + p] = d2;
+        band[out + 3 * L + p] = d3;
+      }
       counts[p] = counts[p] + d0 + d1 + d2 + d3;
       variance[p] =
         variance[p] +
@@ -310,6 +326,7 @@ function sumPlainGroup(
   level: number,
   band: Float32Array,
   out: number,
+  binned: boolean,
   counts: Float64Array,
   variance: Float64Array,
   saturated: Uint8Array,
@@ -319,7 +336,7 @@ function sumPlainGroup(
   const rows = cleaner.groupRows;
   const raws = cleaner.groupRaw;
   const L = background.length;
-  const n = fusedPlainGroup(rows[2], rows[3], rows[4], rows[5], raws[0], raws[1], raws[2], raws[3], background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates);
+  const n = fusedPlainGroup(rows[2], rows[3], rows[4], rows[5], raws[0], raws[1], raws[2], raws[3], background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates);
   if (n === 0) return 0;
   let rejected = 0;
   for (let j = 0; j < GROUP_ROWS; j++) {
@@ -343,7 +360,7 @@ function sumPlainGroup(
         if (cleaner.wasReplaced) rejected++;
       }
       pending[pend + k] = d;
-      band[rowOut + p] = d;
+      if (!binned) band[rowOut + p] = d;
       // A replaced NaN keeps its raw saturation flag (RowCleaner.clean).
       if (raw[p] >= level) saturated[p] = 1;
     }
@@ -354,13 +371,17 @@ function sumPlainGroup(
     const fp = floorVariance[p];
     let sum = counts[p];
     let vsum = variance[p];
+    let binSum = 0;
     for (let j = 0; j < GROUP_ROWS; j++) {
       const d = pending[j * L + k];
       sum += d;
       vsum += halfGain * (d + Math.abs(d)) + fp;
+      // The bin's first row starts its sum (0 + d would turn −0 into +0).
+      binSum = j === 0 ? d : binSum + d;
     }
     counts[p] = sum;
     variance[p] = vsum;
+    if (binned) band[out + p] = binSum;
   }
   return rejected;
 }
@@ -381,12 +402,18 @@ export function sumBand(input: SumBandInput): SumBandResult {
   const L = background.length;
   const nRows = signal.end - signal.start;
   const centre = 0.5 * (signal.start + signal.end - 1);
+  const binRows = bandBinRows(nRows);
+  const binned = binRows > 1;
+  const bins = Math.floor(nRows / binRows);
   const counts = new Float64Array(L);
   const variance = new Float64Array(L);
   const saturated = new Uint8Array(L);
-  const band = new Float32Array(nRows * L);
+  const band = new Float32Array(bins * L);
   const rowData = new Float64Array(L);
   const rowVar = new Float64Array(L);
+  // A row from the row-by-row paths, and the running sum of its bin when the band is binned.
+  const rowBand = new Float64Array(L);
+  const binSum = new Float64Array(L);
   const values = cleaner.values;
   const sat = cleaner.saturated;
   const candidates = new Int32Array(L);
@@ -400,17 +427,31 @@ export function sumBand(input: SumBandInput): SumBandResult {
     for (let j = 1; j < GROUP_ROWS; j++) if (shiftAt(r + j) !== 0) return false;
     return true;
   };
+  /** Row r's band values (in rowBand) into the band: stored, or added to its bin. */
+  const foldBandRow = (r: number) => {
+    if (!binned) {
+      band.set(rowBand, r * L);
+      return;
+    }
+    const bin = Math.floor(r / binRows);
+    if (bin >= bins) return; // the rows of a last, partial bin are summed but not kept
+    const first = r % binRows === 0;
+    for (let p = 0; p < L; p++) binSum[p] = first ? rowBand[p] : binSum[p] + rowBand[p];
+    if (r % binRows === binRows - 1) band.set(binSum, bin * L);
+  };
   const pending = new Float64Array(GROUP_ROWS * L);
   for (let r = 0; r < nRows; r++) {
     const shift = shiftAt(r);
-    const out = r * L;
-    if (shift === 0 && r + GROUP_ROWS <= nRows && unshiftedFrom(r) && !cleaner.rejectsHot && cleaner.loadPlainGroup(signal.start + r)) {
-      rejected += sumPlainGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates, pending);
+    // Four rows at once fill one bin exactly, or four band rows.
+    const groupable = shift === 0 && r + GROUP_ROWS <= nRows && unshiftedFrom(r) && (!binned || r % binRows === 0);
+    const out = binned ? (r / binRows) * L : r * L;
+    if (groupable && !cleaner.rejectsHot && cleaner.loadPlainGroup(signal.start + r)) {
+      rejected += sumPlainGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates, pending);
       r += GROUP_ROWS - 1;
       continue;
     }
-    if (shift === 0 && r + GROUP_ROWS <= nRows && unshiftedFrom(r) && cleaner.loadGroup(signal.start + r)) {
-      rejected += sumGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates, pending);
+    if (groupable && cleaner.loadGroup(signal.start + r)) {
+      rejected += sumGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates, pending);
       r += GROUP_ROWS - 1;
       continue;
     }
@@ -420,27 +461,29 @@ export function sumBand(input: SumBandInput): SumBandResult {
       // row order, so the sums are the same as cleaning the row first.
       const { cur, rawRow, screenThreshold: screen } = cleaner;
       const [a, b, c] = cleaner.neighbours as Float32Array[];
-      const n = fusedRow(cur, rawRow, a, b, c, screen, background, floorVariance, gain, level, band, out, counts, variance, saturated, candidates);
+      const n = fusedRow(cur, rawRow, a, b, c, screen, background, floorVariance, gain, level, rowBand, counts, variance, saturated, candidates);
       for (let k = 0; k < n; k++) {
         const p = candidates[k];
         const d = cleaner.resolve(p) - background[p];
         if (cleaner.wasReplaced) rejected++;
-        band[out + p] = d;
+        rowBand[p] = d;
         counts[p] += d;
         variance[p] += gain * 0.5 * (d + Math.abs(d)) + floorVariance[p];
         if (rawRow[p] >= level && !cleaner.wasHot) saturated[p] = 1;
       }
+      foldBandRow(r);
       continue;
     }
     rejected += cleaner.clean(signal.start + r);
     if (shift === 0) {
       for (let p = 0; p < L; p++) {
         const d = values[p] - background[p];
-        band[out + p] = d;
+        rowBand[p] = d;
         counts[p] += d;
         variance[p] += gain * 0.5 * (d + Math.abs(d)) + floorVariance[p];
       }
       if (cleaner.anySaturated) for (let p = 0; p < L; p++) saturated[p] |= sat[p];
+      foldBandRow(r);
       continue;
     }
     for (let p = 0; p < L; p++) {
@@ -462,13 +505,26 @@ export function sumBand(input: SumBandInput): SumBandResult {
       if (i1 < 0) i1 = 0;
       else if (i1 > L - 1) i1 = L - 1;
       const d = w0 * rowData[i0] + f * rowData[i1];
-      band[out + p] = d;
+      rowBand[p] = d;
       counts[p] += d;
       variance[p] += w0sq * rowVar[i0] + w1sq * rowVar[i1];
       if (anySat && ((w0 > 0 && sat[i0]) || (f > 0 && sat[i1]))) saturated[p] = 1;
     }
+    foldBandRow(r);
   }
   const n2 = nRows * nRows;
   for (let p = 0; p < L; p++) variance[p] += n2 * backgroundVariance[p];
-  return { counts, variance, saturated, band, bandRows: nRows, rejected };
+  return { counts, variance, saturated, band, bandRows: bins, bandBinRows: binRows, rejected };
+}
+
+/** Band rows from which the kept band is binned (a 2048-row frame's band is ~10 MB unbinned). */
+export const TALL_BAND_ROWS = 256;
+
+/**
+ * Rows per bin of the kept band: {@link GROUP_ROWS} for a tall band, else 1. Its only reader is
+ * the spatial width of a line, which a 4-row box hardly blurs on a band this tall
+ * (variance (4² − 1)/12 = 1.25 rows², taken off there).
+ */
+export function bandBinRows(nRows: number): number {
+  return nRows >= TALL_BAND_ROWS ? GROUP_ROWS : 1;
 }

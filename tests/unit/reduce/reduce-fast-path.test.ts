@@ -58,6 +58,7 @@ function expectSameLineout(fast: Lineout, plain: Lineout): void {
   expect(fast.rejectedPixels).toBe(plain.rejectedPixels);
   expect(fast.noiseFloorCounts).toBe(plain.noiseFloorCounts);
   expect(fast.bandRows).toBe(plain.bandRows);
+  expect(fast.bandBinRows).toBe(plain.bandBinRows);
   expect(Array.from(fast.counts)).toEqual(Array.from(plain.counts));
   expect(Array.from(fast.variance)).toEqual(Array.from(plain.variance));
   expect(Array.from(fast.saturated)).toEqual(Array.from(plain.saturated));
@@ -89,6 +90,33 @@ describe('reduceFrame: the streaming path equals the straightforward one', () =>
       const dark = how.dark ? darkFrame(frame, 200 + seed) : undefined;
       const full: ReduceOptions = { spectralAxis: axis, dark, saturationLevel: 1000, ...options };
       expectSameLineout(reduceFrame(frame, full), reduceFrameStraightforward(frame, full));
+    }
+  });
+
+  // A band of ≥ 256 rows is kept in bins of 4 rows: every path must fill the bins alike.
+  const tall: SyntheticFrameSpec = {
+    ...spec,
+    spatialLength: 640,
+    spatialCentre: 300,
+    lines: spec.lines.map((line) => ({ ...line, photons: line.photons * 6, spatialSigmaPx: line.spatialSigmaPx * 8 })),
+  };
+  const tallBands = { signal: { start: 101, end: 406 }, background: [{ start: 0, end: 60 }, { start: 470, end: 640 }] };
+  it.each<[string, Partial<ReduceOptions>, { dark?: boolean; tilt?: boolean; axis?: 'x' | 'y' }]>([
+    ['a tall band', tallBands, {}],
+    ['a tall band from the frame edge, with a dark frame', { signal: { start: 0, end: 330 }, background: [{ start: 500, end: 640 }] }, { dark: true }],
+    ['a tall band with tilt and curvature', { ...tallBands, lineShape: { tiltPxPerPx: 0.01, curvaturePxPerPx2: -0.0001 } }, { tilt: true }],
+    ['a tall band without rejection', { ...tallBands, rejectOutliers: false }, { dark: true }],
+    ['a tall band found automatically, spectral axis y', {}, { axis: 'y' }],
+  ])('%s', (_name, options, how) => {
+    for (const seed of [1, 2]) {
+      const axis = how.axis ?? 'x';
+      const hits = options.signal ? 2000 : 200;
+      const frame = damage(syntheticFrame({ ...tall, spectralAxis: axis, seed, tiltPxPerPx: how.tilt ? 0.01 : 0 }), 300 + seed, hits);
+      const dark = how.dark ? darkFrame(frame, 400 + seed) : undefined;
+      const full: ReduceOptions = { spectralAxis: axis, dark, saturationLevel: 1000, ...options };
+      const fast = reduceFrame(frame, full);
+      expect(fast.bandBinRows).toBe(4);
+      expectSameLineout(fast, reduceFrameStraightforward(frame, full));
     }
   });
 

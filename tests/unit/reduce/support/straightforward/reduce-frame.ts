@@ -153,6 +153,7 @@ export function reduceFrameStraightforward(frame: Frame, options: ReduceOptions)
     saturated: summed.saturated,
     band: summed.band,
     bandRows: summed.bandRows,
+    bandBinRows: summed.bandBinRows,
     signal: { ...signal },
     background: background.map((b) => ({ ...b })),
     lineShape: { ...opts.lineShape },

@@ -23,7 +23,12 @@ export interface SumBandResult {
   saturated: Uint8Array;
   band: Float32Array;
   bandRows: number;
+  bandBinRows: number;
 }
+
+/** Bands of at least this many rows are kept in bins of four rows (the last partial bin dropped). */
+const TALL_BAND_ROWS = 256;
+const BIN_ROWS = 4;
 
 /**
  * Background subtraction, tilt/curvature correction and summation of the signal band.
@@ -43,7 +48,16 @@ export function sumBand(input: SumBandInput): SumBandResult {
   const counts = new Float64Array(L);
   const variance = new Float64Array(L);
   const saturated = new Uint8Array(L);
-  const band = new Float32Array(nRows * L);
+  const binRows = nRows >= TALL_BAND_ROWS ? BIN_ROWS : 1;
+  const bins = Math.floor(nRows / binRows);
+  const band = new Float32Array(bins * L);
+  // Each bin's sum, in row order, started from its first row.
+  const binSum = new Float64Array(L);
+  const keep = (r: number, p: number, d: number) => {
+    if (Math.floor(r / binRows) >= bins) return;
+    binSum[p] = r % binRows === 0 ? d : binSum[p] + d;
+    if (r % binRows === binRows - 1) band[Math.floor(r / binRows) * L + p] = binSum[p];
+  };
   const rowData = new Float64Array(L);
   const rowVar = new Float64Array(L);
   const values = strip.values;
@@ -57,11 +71,10 @@ export function sumBand(input: SumBandInput): SumBandResult {
     }
     const o = signal.start + r - centre;
     const shift = lineShape.tiltPxPerPx * o + lineShape.curvaturePxPerPx2 * o * o;
-    const out = r * L;
     if (shift === 0) {
       for (let p = 0; p < L; p++) {
         const d = rowData[p];
-        band[out + p] = d;
+        keep(r, p, d);
         counts[p] += d;
         variance[p] += rowVar[p];
         if (sat[base + p]) saturated[p] = 1;
@@ -81,7 +94,7 @@ export function sumBand(input: SumBandInput): SumBandResult {
       if (i1 < 0) i1 = 0;
       else if (i1 > L - 1) i1 = L - 1;
       const d = w0 * rowData[i0] + f * rowData[i1];
-      band[out + p] = d;
+      keep(r, p, d);
       counts[p] += d;
       variance[p] += w0sq * rowVar[i0] + w1sq * rowVar[i1];
       if ((w0 > 0 && sat[base + i0]) || (f > 0 && sat[base + i1])) saturated[p] = 1;
@@ -89,5 +102,5 @@ export function sumBand(input: SumBandInput): SumBandResult {
   }
   const n2 = nRows * nRows;
   for (let p = 0; p < L; p++) variance[p] += n2 * backgroundVariance[p];
-  return { counts, variance, saturated, band, bandRows: nRows };
+  return { counts, variance, saturated, band, bandRows: bins, bandBinRows: binRows };
 }
