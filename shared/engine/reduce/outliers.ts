@@ -22,8 +22,8 @@ export interface OutlierSettings {
   gain: number;
   /** Noise floor variance per pixel (read noise and background shot noise), counts². */
   floorVariance: number;
-  /** Pedestal under the pixel values (bias or diffuse background), so shot noise uses value − pedestal. */
-  pedestal: number;
+  /** Pedestal under the pixel values (bias or diffuse background), so shot noise uses value − pedestal; asked for only when needed. */
+  pedestal: () => number;
   sigmas: number;
   /** When false only NaN pixels are replaced. */
   rejectHot: boolean;
@@ -236,7 +236,7 @@ export class RowCleaner {
     const v = cur[p];
     this.wasReplaced = false;
     this.wasHot = false;
-    const { gain, floorVariance, pedestal } = settings;
+    const { gain, floorVariance } = settings;
     const k2 = settings.sigmas * settings.sigmas;
     if (v === v && this.interior) {
       if (!settings.rejectHot) return v;
@@ -252,6 +252,7 @@ export class RowCleaner {
       if (vc < mn) mn = vc;
       if (vd < mn) mn = vd;
       const excess = v - mn;
+      const pedestal = settings.pedestal();
       const lv = mn - pedestal > 0 ? mn - pedestal : 0;
       if (excess <= lv || excess * excess <= k2 * (gain * lv + floorVariance)) return v;
     } else if (v === v && !settings.rejectHot) {
@@ -276,11 +277,11 @@ export class RowCleaner {
     const refSpectral = smallMedian(buf, m);
     if (v !== v) {
       this.wasReplaced = true;
-      return Math.fround(refSpatial === refSpatial ? refSpatial : refSpectral === refSpectral ? refSpectral : pedestal);
+      return Math.fround(refSpatial === refSpatial ? refSpatial : refSpectral === refSpectral ? refSpectral : settings.pedestal());
     }
     const ref = Math.max(refSpatial === refSpatial ? refSpatial : -Infinity, refSpectral === refSpectral ? refSpectral : -Infinity);
     if (!Number.isFinite(ref)) return v;
-    const level = Math.max(ref - pedestal, 0);
+    const level = Math.max(ref - settings.pedestal(), 0);
     const excess = v - ref;
     if (excess > level && excess * excess > k2 * (gain * level + floorVariance)) {
       this.wasReplaced = true;

@@ -34,6 +34,12 @@ function boxcar(values: Float64Array, size: number): Float64Array {
   return out;
 }
 
+/** `compute`, run at the first call only. */
+function once(compute: () => number): () => number {
+  let value: number | undefined;
+  return () => (value ??= compute());
+}
+
 /** The frame-wide refusals: nothing but NaN, or nothing below the saturation level. */
 function refuseUnusable(frame: Frame, refusals: { allNaN: boolean; allSaturated: boolean }, saturationLevel: number): void {
   if (refusals.allNaN) {
@@ -94,10 +100,12 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
   const bgRowCount = background.reduce((n, band) => n + band.end - band.start, 0);
 
   // Noise floor first (MAD is robust to the hits that rejection will remove).
-  const bgPedestal = bgs.length > 0 ? bandPedestal(bgs[0].source, bgs[0].band.start, bgs[0].band.end) : 0;
+  // Pedestals are medians of 20 000 samples: taken only when something reads them (the outlier
+  // test, a given read noise, a NaN pixel with no finite neighbour).
+  const bgPedestal = once(() => (bgs.length > 0 ? bandPedestal(bgs[0].source, bgs[0].band.start, bgs[0].band.end) : 0));
   let floorSigma: number;
   if (opts.readNoise !== undefined) {
-    floorSigma = Math.sqrt(opts.readNoise ** 2 + opts.gain * Math.max(bgPedestal, 0));
+    floorSigma = Math.sqrt(opts.readNoise ** 2 + opts.gain * Math.max(bgPedestal(), 0));
   } else {
     floorSigma = noiseFloorFromRows(bgs);
     // No usable background rows: fall back to the signal band's own row differences (lines are
@@ -106,7 +114,7 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
     if (!Number.isFinite(floorSigma)) floorSigma = 0;
   }
   const floorVarScalar = floorSigma * floorSigma;
-  const cleanerFor = (s: SourcedBand, pedestal: number) =>
+  const cleanerFor = (s: SourcedBand, pedestal: () => number) =>
     new RowCleaner(s.source, {
       gain: opts.gain,
       floorVariance: floorVarScalar,
@@ -134,7 +142,7 @@ export function reduceFrame(frame: Frame, options: ReduceOptions): Lineout {
   }
 
   const summed = sumBand({
-    cleaner: cleanerFor(sig, bandPedestal(sig.source, signal.start, signal.end)),
+    cleaner: cleanerFor(sig, once(() => bandPedestal(sig.source, signal.start, signal.end))),
     signal,
     lineShape: opts.lineShape,
     background: bg,
