@@ -92,6 +92,17 @@ export class RowCleaner {
   private interior = false;
   private readonly ringRows = new Int32Array(RING).fill(-1);
   private readonly ring: Float32Array[] = [];
+  /** The ring's rows side by side in one array (each ring row is a view of it). */
+  private readonly ringFlat: Float32Array;
+  /**
+   * After {@link loadPlainGroup}(s): row s + j is `groupData[groupBase[j] + p]` and its raw value
+   * `groupRawData[groupRawBase[j] + p]`. One array with offsets, not four row views: a bare
+   * four-row sum over 1024 x 2048 took 1.2 ms so against 3.7 ms over views, on this machine.
+   */
+  groupData: Float32Array = new Float32Array(0);
+  groupRawData: Float32Array = new Float32Array(0);
+  readonly groupBase = new Int32Array(GROUP_ROWS);
+  readonly groupRawBase = new Int32Array(GROUP_ROWS);
   private readonly buf = new Float64Array(4);
   private readonly candidates: Int32Array;
 
@@ -104,7 +115,8 @@ export class RowCleaner {
     this.saturated = new Uint8Array(L);
     this.candidates = new Int32Array(L);
     this.screenThreshold = settings.sigmas * Math.sqrt(settings.floorVariance) * (1 - 1e-9);
-    for (let k = 0; k < RING; k++) this.ring.push(source.dark ? new Float32Array(L) : new Float32Array(0));
+    this.ringFlat = new Float32Array(source.dark ? RING * L : 0);
+    for (let k = 0; k < RING; k++) this.ring.push(source.dark ? this.ringFlat.subarray(k * L, (k + 1) * L) : new Float32Array(0));
   }
 
   /** The dark-subtracted values of spatial row s (a view of the frame when there is no dark). */
@@ -177,10 +189,14 @@ export class RowCleaner {
     const { source } = this;
     if (this.settings.rejectHot || s < 0 || s + GROUP_ROWS > source.spatialLength) return false;
     const L = source.spectralLength;
+    this.groupData = source.dark ? this.ringFlat : source.raw;
+    this.groupRawData = source.raw;
     for (let j = 0; j < GROUP_ROWS; j++) {
       this.groupRows[j + 2] = this.row(s + j);
       const i = rowIndex(source, s + j);
       this.groupRaw[j] = source.dark ? source.raw.subarray(i, i + L) : this.groupRows[j + 2];
+      this.groupBase[j] = source.dark ? ((s + j) % RING) * L : i;
+      this.groupRawBase[j] = i;
     }
     return true;
   }

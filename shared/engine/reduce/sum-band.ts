@@ -250,14 +250,16 @@ function sumGroup(
  * `candidates` for {@link sumPlainGroup}.
  */
 function fusedPlainGroup(
-  r0: Float32Array,
-  r1: Float32Array,
-  r2: Float32Array,
-  r3: Float32Array,
-  raw0: Float32Array,
-  raw1: Float32Array,
-  raw2: Float32Array,
-  raw3: Float32Array,
+  data: Float32Array,
+  b0: number,
+  b1: number,
+  b2: number,
+  b3: number,
+  rawData: Float32Array,
+  rb0: number,
+  rb1: number,
+  rb2: number,
+  rb3: number,
   background: Float64Array,
   floorVariance: Float64Array,
   gain: number,
@@ -270,15 +272,15 @@ function fusedPlainGroup(
   saturated: Uint8Array,
   candidates: Int32Array,
 ): number {
-  const L = r0.length;
+  const L = background.length;
   const halfGain = gain * 0.5;
-  const rawIsValue = raw0 === r0 && raw1 === r1 && raw2 === r2 && raw3 === r3;
+  const rawIsValue = rawData === data && rb0 === b0 && rb1 === b1 && rb2 === b2 && rb3 === b3;
   let n = 0;
   for (let p = 0; p < L; p++) {
-    const v0 = r0[p];
-    const v1 = r1[p];
-    const v2 = r2[p];
-    const v3 = r3[p];
+    const v0 = data[b0 + p];
+    const v1 = data[b1 + p];
+    const v2 = data[b2 + p];
+    const v3 = data[b3 + p];
     const all = v0 + v1 + v2 + v3;
     if (all === all) {
       const bp = background[p];
@@ -302,7 +304,7 @@ function fusedPlainGroup(
         (halfGain * (d1 + Math.abs(d1)) + fp) +
         (halfGain * (d2 + Math.abs(d2)) + fp) +
         (halfGain * (d3 + Math.abs(d3)) + fp);
-      if (rawIsValue ? v0 >= level || v1 >= level || v2 >= level || v3 >= level : raw0[p] >= level || raw1[p] >= level || raw2[p] >= level || raw3[p] >= level) {
+      if (rawIsValue ? v0 >= level || v1 >= level || v2 >= level || v3 >= level : rawData[rb0 + p] >= level || rawData[rb1 + p] >= level || rawData[rb2 + p] >= level || rawData[rb3 + p] >= level) {
         saturated[p] = 1;
       }
     } else {
@@ -336,7 +338,12 @@ function sumPlainGroup(
   const rows = cleaner.groupRows;
   const raws = cleaner.groupRaw;
   const L = background.length;
-  const n = fusedPlainGroup(rows[2], rows[3], rows[4], rows[5], raws[0], raws[1], raws[2], raws[3], background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates);
+  const base = cleaner.groupBase;
+  const rawBase = cleaner.groupRawBase;
+  const n = fusedPlainGroup(
+    cleaner.groupData, base[0], base[1], base[2], base[3], cleaner.groupRawData, rawBase[0], rawBase[1], rawBase[2], rawBase[3],
+    background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates,
+  );
   if (n === 0) return 0;
   let rejected = 0;
   for (let j = 0; j < GROUP_ROWS; j++) {
