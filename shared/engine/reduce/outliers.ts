@@ -95,14 +95,13 @@ export class RowCleaner {
   /** The ring's rows side by side in one array (each ring row is a view of it). */
   private readonly ringFlat: Float32Array;
   /**
-   * After {@link loadPlainGroup}(s): row s + j is `groupData[groupBase[j] + p]` and its raw value
-   * `groupRawData[groupRawBase[j] + p]`. One array with offsets, not four row views: a bare
-   * four-row sum over 1024 x 2048 took 1.2 ms so against 3.7 ms over views, on this machine.
+   * After {@link loadPlainGroup}(s): row s + j is `groupData[groupBase[j] + p]` (one array with
+   * offsets, see sum-band.ts fusedPlainGroup); `groupRawData` is the frame's own data, the same
+   * array as `groupData` when there is no dark frame.
    */
   groupData: Float32Array = new Float32Array(0);
   groupRawData: Float32Array = new Float32Array(0);
   readonly groupBase = new Int32Array(GROUP_ROWS);
-  readonly groupRawBase = new Int32Array(GROUP_ROWS);
   private readonly buf = new Float64Array(4);
   private readonly candidates: Int32Array;
 
@@ -196,7 +195,6 @@ export class RowCleaner {
       const i = rowIndex(source, s + j);
       this.groupRaw[j] = source.dark ? source.raw.subarray(i, i + L) : this.groupRows[j + 2];
       this.groupBase[j] = source.dark ? ((s + j) % RING) * L : i;
-      this.groupRawBase[j] = i;
     }
     return true;
   }
