@@ -66,12 +66,27 @@ function memoryMiB(): number {
   return (m.heapUsed + m.arrayBuffers) / 2 ** 20;
 }
 
+/**
+ * Bytes of the numbers a result holds: typed arrays by their length, plain arrays at 8 bytes a
+ * number (V8 stores them unboxed), objects walked, each once. Object headers are not counted.
+ */
+function resultBytes(value: unknown, seen = new Set<unknown>()): number {
+  if (value === null || typeof value !== 'object' || seen.has(value)) return 0;
+  seen.add(value);
+  if (ArrayBuffer.isView(value)) return value.byteLength;
+  let total = 0;
+  for (const item of Object.values(value as Record<string, unknown>)) total += typeof item === 'number' ? 8 : resultBytes(item, seen);
+  return total;
+}
+
 interface StageFigures {
   medianMs: number;
   /** Fastest run: on a shared machine the closest figure to the code's own cost. */
   bestMs: number;
   /** Median CPU time (user + system, all threads) of one run: less sensitive than wall time to other load on the machine. */
   cpuMs: number;
+  /** Heap and array buffers allocated by one run before a full collection. */
+  peakMiB: number;
   retainedMiB: number;
 }
 
@@ -98,12 +113,19 @@ async function timeStage<T>(run: () => T | Promise<T>): Promise<{ figures: Stage
     times.push(performance.now() - start);
     cpu.push((used.user + used.system) / 1000);
   }
-  gc?.();
-  const before = memoryMiB();
-  const kept = await run();
-  const retainedMiB = Math.max(0, memoryMiB() - before);
-  result = kept;
-  return { figures: { medianMs: median(times), bestMs: Math.min(...times), cpuMs: median(cpu), retainedMiB }, result };
+  // Peak: the most that three runs, each from a collected heap, allocated before a full
+  // collection (young-generation scavenges inside a run can hide some). Kept: the numbers the
+  // result holds, counted (heap deltas after a collection proved too noisy).
+  let peakMiB = 0;
+  for (let i = 0; i < 3; i++) {
+    gc?.();
+    const before = memoryMiB();
+    result = await run();
+    peakMiB = Math.max(peakMiB, memoryMiB() - before);
+  }
+  const retainedMiB = resultBytes(result) / 2 ** 20;
+  peakMiB = Math.max(peakMiB, retainedMiB);
+  return { figures: { medianMs: median(times), bestMs: Math.min(...times), cpuMs: median(cpu), peakMiB, retainedMiB }, result };
 }
 
 /** The reference pipeline's default rows (reference_pipeline.py run_once): signal h/4 … 3h/4, background 0 … h/8. */
@@ -139,6 +161,7 @@ async function benchOurs(file: string, width: number, height: number) {
     medianMs: Math.max(0, calibrate.figures.medianMs - reduce.figures.medianMs - peaks.figures.medianMs),
     bestMs: Math.max(0, calibrate.figures.bestMs - reduce.figures.bestMs - peaks.figures.bestMs),
     cpuMs: Math.max(0, calibrate.figures.cpuMs - reduce.figures.cpuMs - peaks.figures.cpuMs),
+    peakMiB: calibrate.figures.peakMiB,
     retainedMiB: calibrate.figures.retainedMiB,
   };
   // Applying a calibration to a new frame, end to end as a student's upload costs it: decode,
@@ -210,7 +233,7 @@ async function main() {
     const ours = rounds[0].ours;
     const hasReference = rounds.every((r) => r.reference !== null);
     console.log(`\nframe ${width} x ${height} uint16 (${path.basename(file)}): status ${ours.status}, ${ours.peaksFound} peaks; medians over ${ROUNDS} rounds`);
-    console.log(`${'stage'.padEnd(12)}${pad('orderly ms', 11)}${pad('best ms', 9)}${pad('cpu ms', 9)}${pad('kept MiB', 10)}${pad('ref ms', 9)}${pad('ratio', 7)}${pad('rounds', 12)}  what ours does`);
+    console.log(`${'stage'.padEnd(12)}${pad('orderly ms', 11)}${pad('best ms', 9)}${pad('cpu ms', 9)}${pad('peak MiB', 10)}${pad('kept MiB', 10)}${pad('ref ms', 9)}${pad('ratio', 7)}${pad('rounds', 12)}  what ours does`);
     ours.stages.forEach((stage, index) => {
       const figures = rounds.map((r) => r.ours.stages[index].figures);
       const refs = hasReference ? rounds.map((r) => (r.reference as Record<string, number>)[stage.reference]) : [];
@@ -222,6 +245,7 @@ async function main() {
         pad(fmt(median(figures.map((f) => f.medianMs))), 11),
         pad(fmt(Math.min(...figures.map((f) => f.bestMs))), 9),
         pad(fmt(median(figures.map((f) => f.cpuMs))), 9),
+        pad(fmt(Math.max(...figures.map((f) => f.peakMiB))), 10),
         pad(fmt(Math.max(...figures.map((f) => f.retainedMiB))), 10),
         pad(fmt(refs.length > 0 ? median(refs) : Number.NaN), 9),
         pad(fmt(ratio), 7),
