@@ -182,6 +182,43 @@ function storeGroupRows(rows: Float32Array[], background: Float64Array, band: Fl
 }
 
 /**
+ * The group's candidate pixels, whose values per row wait in `pending` (row j of candidate k at
+ * j·L + k), added to the sums rows in order, and their bin stored when the band is binned.
+ */
+function foldPending(
+  candidates: Int32Array,
+  n: number,
+  pending: Float64Array,
+  floorVariance: Float64Array,
+  gain: number,
+  band: Float32Array,
+  out: number,
+  binned: boolean,
+  counts: Float64Array,
+  variance: Float64Array,
+): void {
+  const L = floorVariance.length;
+  const halfGain = gain * 0.5;
+  for (let k = 0; k < n; k++) {
+    const p = candidates[k];
+    const fp = floorVariance[p];
+    let sum = counts[p];
+    let vsum = variance[p];
+    let binSum = 0;
+    for (let j = 0; j < GROUP_ROWS; j++) {
+      const d = pending[j * L + k];
+      sum += d;
+      vsum += halfGain * (d + Math.abs(d)) + fp;
+      // The bin's first row starts its sum (0 + d would turn −0 into +0).
+      binSum = j === 0 ? d : binSum + d;
+    }
+    counts[p] = sum;
+    variance[p] = vsum;
+    if (binned) band[out + p] = binSum;
+  }
+}
+
+/**
  * Rows s … s + GROUP_ROWS − 1 (prepared by `cleaner.loadGroup(s)`) folded into the band and the
  * sums: {@link fusedGroup}, then the pixels it left, row by row through the cleaner, their
  * values held in `pending` (GROUP_ROWS · L) so that each sum still adds the rows in order.
@@ -250,24 +287,7 @@ function sumGroup(
       if (raw[p] >= level && !hot) saturated[p] = 1;
     }
   }
-  const halfGain = gain * 0.5;
-  for (let k = 0; k < n; k++) {
-    const p = candidates[k];
-    const fp = floorVariance[p];
-    let sum = counts[p];
-    let vsum = variance[p];
-    let binSum = 0;
-    for (let j = 0; j < GROUP_ROWS; j++) {
-      const d = pending[j * L + k];
-      sum += d;
-      vsum += halfGain * (d + Math.abs(d)) + fp;
-      // The bin's first row starts its sum (0 + d would turn −0 into +0).
-      binSum = j === 0 ? d : binSum + d;
-    }
-    counts[p] = sum;
-    variance[p] = vsum;
-    if (binned) band[out + p] = binSum;
-  }
+  foldPending(candidates, n, pending, floorVariance, gain, band, out, binned, counts, variance);
   return rejected;
 }
 
@@ -389,24 +409,7 @@ function sumPlainGroup(
       if (raw[p] >= level) saturated[p] = 1;
     }
   }
-  const halfGain = gain * 0.5;
-  for (let k = 0; k < n; k++) {
-    const p = candidates[k];
-    const fp = floorVariance[p];
-    let sum = counts[p];
-    let vsum = variance[p];
-    let binSum = 0;
-    for (let j = 0; j < GROUP_ROWS; j++) {
-      const d = pending[j * L + k];
-      sum += d;
-      vsum += halfGain * (d + Math.abs(d)) + fp;
-      // The bin's first row starts its sum (0 + d would turn −0 into +0).
-      binSum = j === 0 ? d : binSum + d;
-    }
-    counts[p] = sum;
-    variance[p] = vsum;
-    if (binned) band[out + p] = binSum;
-  }
+  foldPending(candidates, n, pending, floorVariance, gain, band, out, binned, counts, variance);
   return rejected;
 }
 

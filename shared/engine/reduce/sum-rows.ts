@@ -76,40 +76,15 @@ export function addCleanRows(cleaner: RowCleaner, start: number, end: number, su
   const screen = cleaner.screenThreshold;
   let rejected = 0;
   for (let s = start; s < end; s++) {
-    if (s + GROUP_ROWS <= end && !cleaner.rejectsHot && cleaner.loadPlainGroup(s)) {
+    // Without rejection only NaN pixels need the cleaner; with it, those the first screen flags.
+    const plain = s + GROUP_ROWS <= end && !cleaner.rejectsHot && cleaner.loadPlainGroup(s);
+    if (plain || (s + GROUP_ROWS <= end && cleaner.loadGroup(s))) {
       const rows = cleaner.groupRows;
-      const n = addPlainGroup(rows[2], rows[3], rows[4], rows[5], sum, candidates);
+      const n = plain
+        ? addPlainGroup(rows[2], rows[3], rows[4], rows[5], sum, candidates)
+        : addGroup(rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6], screen, sum, candidates);
       for (let j = 0; j < GROUP_ROWS && n > 0; j++) {
-        const cur = rows[j + 2];
-        let loaded = false;
-        for (let k = 0; k < n; k++) {
-          const p = candidates[k];
-          const v = cur[p];
-          if (v === v) {
-            pending[j * L + k] = v;
-            continue;
-          }
-          if (!loaded) {
-            cleaner.load(s + j);
-            loaded = true;
-          }
-          pending[j * L + k] = cleaner.resolve(p);
-          if (cleaner.wasReplaced) rejected++;
-        }
-      }
-      for (let k = 0; k < n; k++) {
-        const p = candidates[k];
-        let total = sum[p];
-        for (let j = 0; j < GROUP_ROWS; j++) total += pending[j * L + k];
-        sum[p] = total;
-      }
-      s += GROUP_ROWS - 1;
-      continue;
-    }
-    if (s + GROUP_ROWS <= end && cleaner.loadGroup(s)) {
-      const rows = cleaner.groupRows;
-      const n = addGroup(rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6], screen, sum, candidates);
-      for (let j = 0; j < GROUP_ROWS && n > 0; j++) {
+        // Row s + j is rows[j + 2]; its screen neighbours (screened groups only) rows[j], rows[j + 1], rows[j + 3].
         const cur = rows[j + 2];
         const a = rows[j];
         const b = rows[j + 1];
@@ -119,7 +94,7 @@ export function addCleanRows(cleaner: RowCleaner, start: number, end: number, su
           const p = candidates[k];
           const v = cur[p];
           const t = v - screen;
-          if (t <= b[p] && t <= c[p] && t <= a[p]) {
+          if (plain ? v === v : t <= b[p] && t <= c[p] && t <= a[p]) {
             pending[j * L + k] = v;
             continue;
           }
