@@ -413,6 +413,42 @@ function sumPlainGroup(
   return rejected;
 }
 
+/** Working rows of {@link sumBand}, each written before it is read. */
+interface ScratchRows {
+  length: number;
+  rowData: Float64Array;
+  rowVar: Float64Array;
+  rowBand: Float64Array;
+  binSum: Float64Array;
+  /** Four rows of candidates' values, see {@link foldPending}. */
+  pending: Float64Array;
+  /** Where the group kernels put their four-row sums when the band keeps every row. */
+  scratchBin: Float32Array;
+  candidates: Int32Array;
+}
+
+let scratch: ScratchRows | undefined;
+
+/**
+ * The working rows for a spectral length, kept between calls (never returned to a caller, and
+ * sumBand does not re-enter): fresh ones cost ~100 KB of zeroed pages per 2048-pixel call.
+ */
+function scratchRows(length: number): ScratchRows {
+  if (scratch?.length !== length) {
+    scratch = {
+      length,
+      rowData: new Float64Array(length),
+      rowVar: new Float64Array(length),
+      rowBand: new Float64Array(length),
+      binSum: new Float64Array(length),
+      pending: new Float64Array(GROUP_ROWS * length),
+      scratchBin: new Float32Array(length),
+      candidates: new Int32Array(length),
+    };
+  }
+  return scratch;
+}
+
 /**
  * Background subtraction, tilt/curvature correction and summation of the signal band, in one
  * pass over its rows (each row is cleaned, then folded into the sums while it is in cache).
@@ -436,14 +472,10 @@ export function sumBand(input: SumBandInput): SumBandResult {
   const variance = new Float64Array(L);
   const saturated = new Uint8Array(L);
   const band = new Float32Array(bins * L);
-  const rowData = new Float64Array(L);
-  const rowVar = new Float64Array(L);
-  // A row from the row-by-row paths, and the running sum of its bin when the band is binned.
-  const rowBand = new Float64Array(L);
-  const binSum = new Float64Array(L);
+  // rowBand: a row from the row-by-row paths; binSum: the running sum of its bin when binned.
+  const { rowData, rowVar, rowBand, binSum, pending, scratchBin, candidates } = scratchRows(L);
   const values = cleaner.values;
   const sat = cleaner.saturated;
-  const candidates = new Int32Array(L);
   const level = saturationLevel;
   let rejected = 0;
   const shiftAt = (r: number) => {
@@ -466,9 +498,6 @@ export function sumBand(input: SumBandInput): SumBandResult {
     for (let p = 0; p < L; p++) binSum[p] = first ? rowBand[p] : binSum[p] + rowBand[p];
     if (r % binRows === binRows - 1) band.set(binSum, bin * L);
   };
-  const pending = new Float64Array(GROUP_ROWS * L);
-  // Where the group kernels put their four-row sums when the band keeps every row.
-  const scratchBin = new Float32Array(L);
   for (let r = 0; r < nRows; r++) {
     const shift = shiftAt(r);
     // Four rows at once fill one bin exactly, or four band rows.
