@@ -97,12 +97,15 @@ const WARM_UP_MS = 300;
 /** Times `run` REPEAT times after a warm-up; memory is what one run's result retains. */
 async function timeStage<T>(run: () => T | Promise<T>): Promise<{ figures: StageFigures; result: T }> {
   const gc = (globalThis as { gc?: () => void }).gc;
+  // Start each stage from a collected heap, so the garbage of the stage before (a decoded frame
+  // per run) is not collected, and billed, inside this one; then warm up, which also lets V8 size
+  // its heap for this stage again. (Collecting right before the timed runs left the young
+  // generation at its minimum: every run then paid an extra scavenge for its typed arrays, ~0.4 ms
+  // wall and twice the cpu time on a 2048 x 2048 reduce, which a steady process does not.)
+  gc?.();
   let result = await run();
   const warmStart = performance.now();
   for (let i = 1; i < WARM_UP_RUNS || performance.now() - warmStart < WARM_UP_MS; i++) result = await run();
-  // Start each stage from a collected heap, so the garbage of the stage before (a decoded frame
-  // per run) is not collected, and billed, inside this one.
-  gc?.();
   const times: number[] = [];
   const cpu: number[] = [];
   for (let i = 0; i < REPEAT; i += 1) {

@@ -29,22 +29,26 @@ export function noiseFloorFromRows(bands: SourcedBand[]): number {
   let n = 0;
   for (const { source, band } of bands) {
     const L = source.spectralLength;
-    const { raw, dark } = source;
-    // Strided walk over the band's flat (row, pixel) index: every step-th vertical difference.
-    const count = (band.end - band.start - 1) * L;
-    let row = band.start;
+    const { raw, dark, rowStride } = source;
+    // Every step-th vertical difference of the band's flat (row, pixel) index, row by row: p is
+    // the next sample's pixel, carried over into the following row.
     let p = 0;
-    for (let k = 0; k < count && n < diffs.length; k += step) {
-      const i = rowIndex(source, row) + p;
-      const j = i + source.rowStride;
-      const d = dark ? Math.fround(raw[j] - dark[j]) - Math.fround(raw[i] - dark[i]) : raw[j] - raw[i];
-      if (d === d) diffs[n++] = d;
-      // Next sample without a division.
-      p += step;
-      while (p >= L) {
-        p -= L;
-        row++;
+    for (let row = band.start; row < band.end - 1 && n < diffs.length; row++) {
+      const base = rowIndex(source, row);
+      if (dark) {
+        for (; p < L && n < diffs.length; p += step) {
+          const i = base + p;
+          const j = i + rowStride;
+          const d = Math.fround(raw[j] - dark[j]) - Math.fround(raw[i] - dark[i]);
+          if (d === d) diffs[n++] = d;
+        }
+      } else {
+        for (; p < L && n < diffs.length; p += step) {
+          const d = raw[base + p + rowStride] - raw[base + p];
+          if (d === d) diffs[n++] = d;
+        }
       }
+      p -= L;
     }
   }
   return n > 2 ? madSigmaInPlace(diffs, n) / Math.SQRT2 : Number.NaN;

@@ -1,4 +1,5 @@
 import type { LineShape, SpatialBand } from '../types.ts';
+import { type PlainGroupKernel, plainGroupKernel } from './kernels/plain-group.ts';
 import { GROUP_ROWS, type RowCleaner } from './outliers.ts';
 
 /** Inputs of {@link sumBand}. */
@@ -368,17 +369,27 @@ function sumPlainGroup(
   candidates: Int32Array,
   pending: Float64Array,
   scratchBin: Float32Array,
+  kernel: PlainGroupKernel | undefined,
 ): number {
   const rows = cleaner.groupRows;
   const raws = cleaner.groupRaw;
   const L = background.length;
   const base = cleaner.groupBase;
   const rawIsValue = cleaner.groupRawData === cleaner.groupData;
-  const n = fusedPlainGroup(
-    cleaner.groupData, base[0], base[1], base[2], base[3],
-    background, floorVariance, gain, rawIsValue ? level : Infinity,
-    binned ? band : scratchBin, binned ? out : 0, counts, variance, saturated, candidates,
-  );
+  const groupLevel = rawIsValue ? level : Infinity;
+  let n: number;
+  if (kernel) {
+    // counts, variance, saturated and candidates are the kernel's own views (see sumBand).
+    loadKernelRows(kernel, cleaner.groupData, base);
+    n = kernel.run(gain * 0.5, groupLevel);
+    if (binned) band.set(kernel.bin, out);
+  } else {
+    n = fusedPlainGroup(
+      cleaner.groupData, base[0], base[1], base[2], base[3],
+      background, floorVariance, gain, groupLevel,
+      binned ? band : scratchBin, binned ? out : 0, counts, variance, saturated, candidates,
+    );
+  }
   if (!rawIsValue) flagSaturatedRows(raws, level, saturated, candidates, n);
   if (!binned) storeGroupRows(rows.slice(2, 6), background, band, out);
   if (n === 0) return 0;
@@ -411,6 +422,16 @@ function sumPlainGroup(
   }
   foldPending(candidates, n, pending, floorVariance, gain, band, out, binned, counts, variance);
   return rejected;
+}
+
+/** The group's four rows (row j at `data[base[j] + p]`) copied into the kernel's memory. */
+function loadKernelRows(kernel: PlainGroupKernel, data: Float32Array, base: Int32Array): void {
+  const L = kernel.length;
+  if (base[1] === base[0] + L && base[2] === base[1] + L && base[3] === base[2] + L) {
+    kernel.rows.set(data.subarray(base[0], base[0] + GROUP_ROWS * L));
+    return;
+  }
+  for (let j = 0; j < GROUP_ROWS; j++) kernel.rows.set(data.subarray(base[j], base[j] + L), j * L);
 }
 
 /** Working rows of {@link sumBand}, each written before it is read. */
@@ -468,12 +489,30 @@ export function sumBand(input: SumBandInput): SumBandResult {
   const binRows = bandBinRows(nRows);
   const binned = binRows > 1;
   const bins = Math.floor(nRows / binRows);
-  const counts = new Float64Array(L);
-  const variance = new Float64Array(L);
-  const saturated = new Uint8Array(L);
   const band = new Float32Array(bins * L);
   // rowBand: a row from the row-by-row paths; binSum: the running sum of its bin when binned.
-  const { rowData, rowVar, rowBand, binSum, pending, scratchBin, candidates } = scratchRows(L);
+  const { rowData, rowVar, rowBand, binSum, pending, scratchBin, candidates: jsCandidates } = scratchRows(L);
+  // Without hot-pixel rejection the four-row groups run in WebAssembly where it is there: the
+  // running sums then live in the kernel's memory, where every path below adds to them, and are
+  // copied out at the end.
+  const kernel = cleaner.rejectsHot ? undefined : plainGroupKernel(L);
+  let counts: Float64Array;
+  let variance: Float64Array;
+  let saturated: Uint8Array;
+  let candidates: Int32Array;
+  if (kernel) {
+    ({ counts, variance, saturated, candidates } = kernel);
+    counts.fill(0);
+    variance.fill(0);
+    saturated.fill(0);
+    kernel.background.set(background);
+    kernel.floorVariance.set(floorVariance);
+  } else {
+    counts = new Float64Array(L);
+    variance = new Float64Array(L);
+    saturated = new Uint8Array(L);
+    candidates = jsCandidates;
+  }
   const values = cleaner.values;
   const sat = cleaner.saturated;
   const level = saturationLevel;
@@ -504,7 +543,7 @@ export function sumBand(input: SumBandInput): SumBandResult {
     const groupable = shift === 0 && r + GROUP_ROWS <= nRows && unshiftedFrom(r) && (!binned || r % binRows === 0);
     const out = binned ? (r / binRows) * L : r * L;
     if (groupable && !cleaner.rejectsHot && cleaner.loadPlainGroup(signal.start + r)) {
-      rejected += sumPlainGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates, pending, scratchBin);
+      rejected += sumPlainGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates, pending, scratchBin, kernel);
       r += GROUP_ROWS - 1;
       continue;
     }
@@ -572,6 +611,11 @@ export function sumBand(input: SumBandInput): SumBandResult {
   }
   const n2 = nRows * nRows;
   for (let p = 0; p < L; p++) variance[p] += n2 * backgroundVariance[p];
+  if (kernel) {
+    counts = counts.slice();
+    variance = variance.slice();
+    saturated = saturated.slice();
+  }
   return { counts, variance, saturated, band, bandRows: bins, bandBinRows: binRows, rejected };
 }
 

@@ -1,4 +1,5 @@
-import { describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { setWasmKernels } from '../../../shared/engine/reduce/kernels/plain-group.ts';
 import { reduceFrame, type ReduceOptions } from '../../../shared/engine/reduce.ts';
 import type { Frame, Lineout } from '../../../shared/engine/types.ts';
 import { reduceFrameStraightforward } from './support/straightforward/reduce-frame.ts';
@@ -67,7 +68,15 @@ function expectSameLineout(fast: Lineout, plain: Lineout): void {
 
 const explicitBands = { signal: { start: 40, end: 81 }, background: [{ start: 0, end: 30 }, { start: 92, end: 120 }] };
 
-describe('reduceFrame: the streaming path equals the straightforward one', () => {
+// Both kernels of the unrejected four-row groups: WebAssembly SIMD where the runtime has it
+// (Node, current browsers), and the JavaScript one it falls back to.
+describe.each([
+  ['the WebAssembly kernel', true],
+  ['the JavaScript kernel', false],
+])('reduceFrame with %s: the streaming path equals the straightforward one', (_kernel, wasm) => {
+  beforeAll(() => setWasmKernels(wasm));
+  afterAll(() => setWasmKernels(true));
+
   it.each<[string, Partial<ReduceOptions>, { dark?: boolean; tilt?: boolean; axis?: 'x' | 'y' }]>([
     ['automatic bands', {}, {}],
     ['explicit bands', explicitBands, {}],
@@ -106,6 +115,7 @@ describe('reduceFrame: the streaming path equals the straightforward one', () =>
     ['a tall band from the frame edge, with a dark frame', { signal: { start: 0, end: 330 }, background: [{ start: 500, end: 640 }] }, { dark: true }],
     ['a tall band with tilt and curvature', { ...tallBands, lineShape: { tiltPxPerPx: 0.01, curvaturePxPerPx2: -0.0001 } }, { tilt: true }],
     ['a tall band without rejection', { ...tallBands, rejectOutliers: false }, { dark: true }],
+    ['a tall band without rejection or a dark frame', { ...tallBands, rejectOutliers: false }, {}],
     ['a tall band found automatically, spectral axis y', {}, { axis: 'y' }],
   ])('%s', (_name, options, how) => {
     for (const seed of [1, 2]) {

@@ -1,0 +1,111 @@
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { assembleWat } from '../../../scripts/lib/assemble-wat.ts';
+import { wasmBase64 } from '../../../shared/engine/reduce/kernels/plain-group-wasm.ts';
+import { plainGroupKernel, setWasmKernels } from '../../../shared/engine/reduce/kernels/plain-group.ts';
+import { reduceFrame, type ReduceOptions } from '../../../shared/engine/reduce.ts';
+import type { Frame, Lineout } from '../../../shared/engine/types.ts';
+import { rng } from './support/synthetic.ts';
+
+// The WebAssembly SIMD kernel of the unrejected four-row groups against the JavaScript kernel it
+// replaces: the same sums bit for bit (IEEE 754 double arithmetic in the same order in both;
+// the WebAssembly core specification defines f64 and f64x2 operations as IEEE 754 ones).
+// Invented data throughout.
+
+const KERNEL_DIR = path.resolve(import.meta.dirname, '../../../shared/engine/reduce/kernels');
+
+afterAll(() => setWasmKernels(true));
+
+/** A frame of camera-like integer counts with NaN, ±Infinity and saturated pixels scattered in. */
+function damagedFrame(width: number, height: number, seed: number, fullScale: number): Frame {
+  const random = rng(seed);
+  const data = new Float32Array(width * height);
+  for (let i = 0; i < data.length; i++) {
+    const line = 3000 * Math.exp(-0.5 * (((i % width) - width / 3) / 2.5) ** 2);
+    data[i] = Math.round(100 + 20 * random() + line * random());
+    const kind = random();
+    if (kind < 0.002) data[i] = Number.NaN;
+    else if (kind < 0.0025) data[i] = Number.POSITIVE_INFINITY;
+    else if (kind < 0.003) data[i] = Number.NEGATIVE_INFINITY;
+    else if (kind < 0.006) data[i] = fullScale;
+  }
+  return { width, height, data, bitsPerSample: -32, sampleFormat: 'float', fullScale, format: 'tiff', pageCount: 1, page: 0 };
+}
+
+function bitsOf(values: ArrayLike<number>): string[] {
+  return Array.from(values, (v) => (Object.is(v, -0) ? '-0' : String(v)));
+}
+
+function expectIdentical(a: Lineout, b: Lineout): void {
+  expect(bitsOf(a.counts)).toEqual(bitsOf(b.counts));
+  expect(bitsOf(a.variance)).toEqual(bitsOf(b.variance));
+  expect(Array.from(a.saturated)).toEqual(Array.from(b.saturated));
+  expect(bitsOf(a.band)).toEqual(bitsOf(b.band));
+  expect(a.rejectedPixels).toBe(b.rejectedPixels);
+}
+
+function reduceBoth(frame: Frame, options: ReduceOptions): [Lineout, Lineout] {
+  setWasmKernels(true);
+  const wasm = reduceFrame(frame, options);
+  setWasmKernels(false);
+  const js = reduceFrame(frame, options);
+  setWasmKernels(true);
+  return [wasm, js];
+}
+
+describe('the WebAssembly band kernel', () => {
+  it('is the assembly of its text source (run `npm run build:kernels` after editing the .wat)', async () => {
+    const source = readFileSync(path.join(KERNEL_DIR, 'plain-group.wat'), 'utf8');
+    const assembled = await assembleWat('plain-group.wat', source);
+    expect(Buffer.from(assembled).toString('base64')).toBe(wasmBase64);
+  });
+
+  it('runs in this runtime (so the comparisons below compare two kernels)', () => {
+    setWasmKernels(true);
+    expect(plainGroupKernel(17)).toBeDefined();
+    setWasmKernels(false);
+    expect(plainGroupKernel(17)).toBeUndefined();
+    setWasmKernels(true);
+  });
+
+  it.each([
+    ['an even spectral length, a tall binned band', 512, 700, { signal: { start: 150, end: 550 }, background: [{ start: 0, end: 100 }] }],
+    ['an odd spectral length, rows left over after the groups', 257, 300, { signal: { start: 101, end: 199 }, background: [{ start: 0, end: 60 }, { start: 240, end: 300 }] }],
+    ['a one-pixel spectrum', 1, 400, { signal: { start: 100, end: 390 }, background: [{ start: 0, end: 50 }] }],
+  ])('gives the JavaScript kernel\'s sums bit for bit: %s', (_name, width, height, bands) => {
+    for (const seed of [1, 2, 3]) {
+      const frame = damagedFrame(width, height, seed, 3000);
+      const options: ReduceOptions = { spectralAxis: 'x', rejectOutliers: false, saturationLevel: 2900, ...bands };
+      const [wasm, js] = reduceBoth(frame, options);
+      expectIdentical(wasm, js);
+      // The frames do reach the cases the kernel treats apart.
+      expect(js.saturated.some((v) => v === 1)).toBe(true);
+    }
+  });
+
+  it('gives the same sums with a dark frame and a spectral axis along y', () => {
+    const frame = damagedFrame(300, 520, 7, 3000);
+    const dark = { ...damagedFrame(300, 520, 8, 3000), data: new Float32Array(300 * 520).map((_, i) => 90 + (i % 7)) };
+    const options: ReduceOptions = { spectralAxis: 'y', rejectOutliers: false, dark, saturationLevel: 2900, signal: { start: 100, end: 200 }, background: [{ start: 0, end: 60 }] };
+    const [wasm, js] = reduceBoth(frame, options);
+    expectIdentical(wasm, js);
+    const [wasmX, jsX] = reduceBoth(frame, { ...options, spectralAxis: 'x', signal: { start: 150, end: 450 }, background: [{ start: 0, end: 100 }] });
+    expectIdentical(wasmX, jsX);
+  });
+
+  it('keeps no state between frames of different lengths', () => {
+    const small = damagedFrame(64, 300, 11, 3000);
+    const large = damagedFrame(1000, 300, 12, 3000);
+    const options: ReduceOptions = { spectralAxis: 'x', rejectOutliers: false, signal: { start: 100, end: 200 }, background: [{ start: 0, end: 80 }] };
+    setWasmKernels(false);
+    const expected = [reduceFrame(small, options), reduceFrame(large, options), reduceFrame(small, options)];
+    setWasmKernels(true);
+    const got = [reduceFrame(small, options), reduceFrame(large, options), reduceFrame(small, options)];
+    got.forEach((lineout, i) => expectIdentical(lineout, expected[i]));
+    // A result is the caller's own: a later reduction does not overwrite it.
+    const before = bitsOf(got[0].counts);
+    reduceFrame(large, options);
+    expect(bitsOf(got[0].counts)).toEqual(before);
+  });
+});
