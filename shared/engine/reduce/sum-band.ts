@@ -1,5 +1,5 @@
 import type { LineShape, SpatialBand } from '../types.ts';
-import { type PlainGroupKernel, plainGroupKernel } from './kernels/plain-group.ts';
+import { type BandGroupKernels, bandGroupKernels } from './kernels/band-groups.ts';
 import { GROUP_ROWS, type RowCleaner } from './outliers.ts';
 
 /** Inputs of {@link sumBand}. */
@@ -241,17 +241,26 @@ function sumGroup(
   candidates: Int32Array,
   pending: Float64Array,
   scratchBin: Float32Array,
+  kernel: BandGroupKernels | undefined,
 ): number {
   const rows = cleaner.groupRows;
   const raws = cleaner.groupRaw;
   const screen = cleaner.screenThreshold;
   const L = background.length;
   const rawIsValue = raws[0] === rows[2] && raws[1] === rows[3] && raws[2] === rows[4] && raws[3] === rows[5];
-  const n = fusedGroup(
-    rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6],
-    screen, background, floorVariance, gain, rawIsValue ? level : Infinity,
-    binned ? band : scratchBin, binned ? out : 0, counts, variance, saturated, candidates,
-  );
+  const groupLevel = rawIsValue ? level : Infinity;
+  let n: number;
+  if (kernel) {
+    // counts, variance, saturated and candidates are the kernels' own views (see sumBand).
+    n = kernel.screenedGroup(rows, s, screen, gain * 0.5, groupLevel);
+    if (binned) band.set(kernel.bin, out);
+  } else {
+    n = fusedGroup(
+      rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6],
+      screen, background, floorVariance, gain, groupLevel,
+      binned ? band : scratchBin, binned ? out : 0, counts, variance, saturated, candidates,
+    );
+  }
   if (!rawIsValue) flagSaturatedRows(raws, level, saturated, candidates, n);
   if (!binned) storeGroupRows(rows.slice(2, 6), background, band, out);
   if (n === 0) return 0;
@@ -369,7 +378,7 @@ function sumPlainGroup(
   candidates: Int32Array,
   pending: Float64Array,
   scratchBin: Float32Array,
-  kernel: PlainGroupKernel | undefined,
+  kernel: BandGroupKernels | undefined,
 ): number {
   const rows = cleaner.groupRows;
   const raws = cleaner.groupRaw;
@@ -380,8 +389,7 @@ function sumPlainGroup(
   let n: number;
   if (kernel) {
     // counts, variance, saturated and candidates are the kernel's own views (see sumBand).
-    loadKernelRows(kernel, cleaner.groupData, base);
-    n = kernel.run(gain * 0.5, groupLevel);
+    n = kernel.plainGroup(cleaner.groupData, base, gain * 0.5, groupLevel);
     if (binned) band.set(kernel.bin, out);
   } else {
     n = fusedPlainGroup(
@@ -422,16 +430,6 @@ function sumPlainGroup(
   }
   foldPending(candidates, n, pending, floorVariance, gain, band, out, binned, counts, variance);
   return rejected;
-}
-
-/** The group's four rows (row j at `data[base[j] + p]`) copied into the kernel's memory. */
-function loadKernelRows(kernel: PlainGroupKernel, data: Float32Array, base: Int32Array): void {
-  const L = kernel.length;
-  if (base[1] === base[0] + L && base[2] === base[1] + L && base[3] === base[2] + L) {
-    kernel.rows.set(data.subarray(base[0], base[0] + GROUP_ROWS * L));
-    return;
-  }
-  for (let j = 0; j < GROUP_ROWS; j++) kernel.rows.set(data.subarray(base[j], base[j] + L), j * L);
 }
 
 /** Working rows of {@link sumBand}, each written before it is read. */
@@ -492,10 +490,10 @@ export function sumBand(input: SumBandInput): SumBandResult {
   const band = new Float32Array(bins * L);
   // rowBand: a row from the row-by-row paths; binSum: the running sum of its bin when binned.
   const { rowData, rowVar, rowBand, binSum, pending, scratchBin, candidates: jsCandidates } = scratchRows(L);
-  // Without hot-pixel rejection the four-row groups run in WebAssembly where it is there: the
-  // running sums then live in the kernel's memory, where every path below adds to them, and are
-  // copied out at the end.
-  const kernel = cleaner.rejectsHot ? undefined : plainGroupKernel(L);
+  // The four-row groups run in WebAssembly where it is there: the running sums then live in the
+  // kernels' memory, where every path below adds to them, and are copied out at the end.
+  const kernel = bandGroupKernels(L);
+  kernel?.forgetRows();
   let counts: Float64Array;
   let variance: Float64Array;
   let saturated: Uint8Array;
@@ -548,7 +546,7 @@ export function sumBand(input: SumBandInput): SumBandResult {
       continue;
     }
     if (groupable && cleaner.loadGroup(signal.start + r)) {
-      rejected += sumGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates, pending, scratchBin);
+      rejected += sumGroup(cleaner, signal.start + r, background, floorVariance, gain, level, band, out, binned, counts, variance, saturated, candidates, pending, scratchBin, kernel);
       r += GROUP_ROWS - 1;
       continue;
     }

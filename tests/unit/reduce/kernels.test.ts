@@ -2,15 +2,16 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { assembleWat } from '../../../scripts/lib/assemble-wat.ts';
-import { wasmBase64 } from '../../../shared/engine/reduce/kernels/plain-group-wasm.ts';
-import { plainGroupKernel, setWasmKernels } from '../../../shared/engine/reduce/kernels/plain-group.ts';
+import { wasmBase64 } from '../../../shared/engine/reduce/kernels/band-groups-wasm.ts';
+import { bandGroupKernels, setWasmKernels } from '../../../shared/engine/reduce/kernels/band-groups.ts';
 import { reduceFrame, type ReduceOptions } from '../../../shared/engine/reduce.ts';
 import type { Frame, Lineout } from '../../../shared/engine/types.ts';
 import { rng } from './support/synthetic.ts';
 
-// The WebAssembly SIMD kernel of the unrejected four-row groups against the JavaScript kernel it
-// replaces: the same sums bit for bit (IEEE 754 double arithmetic in the same order in both;
-// the WebAssembly core specification defines f64 and f64x2 operations as IEEE 754 ones).
+// The WebAssembly SIMD kernels of the four-row groups (with and without the outlier screen)
+// against the JavaScript kernels they replace: the same sums bit for bit (IEEE 754 double
+// arithmetic in the same order in both; the WebAssembly core specification defines its f64 and
+// f64x2 operations as the IEEE 754 ones).
 // Invented data throughout.
 
 const KERNEL_DIR = path.resolve(import.meta.dirname, '../../../shared/engine/reduce/kernels');
@@ -54,18 +55,18 @@ function reduceBoth(frame: Frame, options: ReduceOptions): [Lineout, Lineout] {
   return [wasm, js];
 }
 
-describe('the WebAssembly band kernel', () => {
+describe('the WebAssembly band kernels', () => {
   it('is the assembly of its text source (run `npm run build:kernels` after editing the .wat)', async () => {
-    const source = readFileSync(path.join(KERNEL_DIR, 'plain-group.wat'), 'utf8');
-    const assembled = await assembleWat('plain-group.wat', source);
+    const source = readFileSync(path.join(KERNEL_DIR, 'band-groups.wat'), 'utf8');
+    const assembled = await assembleWat('band-groups.wat', source);
     expect(Buffer.from(assembled).toString('base64')).toBe(wasmBase64);
   });
 
   it('runs in this runtime (so the comparisons below compare two kernels)', () => {
     setWasmKernels(true);
-    expect(plainGroupKernel(17)).toBeDefined();
+    expect(bandGroupKernels(17)).toBeDefined();
     setWasmKernels(false);
-    expect(plainGroupKernel(17)).toBeUndefined();
+    expect(bandGroupKernels(17)).toBeUndefined();
     setWasmKernels(true);
   });
 
@@ -74,30 +75,33 @@ describe('the WebAssembly band kernel', () => {
     ['an odd spectral length, rows left over after the groups', 257, 300, { signal: { start: 101, end: 199 }, background: [{ start: 0, end: 60 }, { start: 240, end: 300 }] }],
     ['a one-pixel spectrum', 1, 400, { signal: { start: 100, end: 390 }, background: [{ start: 0, end: 50 }] }],
   ])('gives the JavaScript kernel\'s sums bit for bit: %s', (_name, width, height, bands) => {
-    for (const seed of [1, 2, 3]) {
+    for (const [seed, rejectOutliers] of [[1, false], [2, false], [3, true], [4, true]] as const) {
       const frame = damagedFrame(width, height, seed, 3000);
-      const options: ReduceOptions = { spectralAxis: 'x', rejectOutliers: false, saturationLevel: 2900, ...bands };
+      const options: ReduceOptions = { spectralAxis: 'x', rejectOutliers, saturationLevel: 2900, ...bands };
       const [wasm, js] = reduceBoth(frame, options);
       expectIdentical(wasm, js);
-      // The frames do reach the cases the kernel treats apart.
+      // The frames do reach the cases the kernels treat apart.
       expect(js.saturated.some((v) => v === 1)).toBe(true);
+      if (rejectOutliers && width > 1) expect(js.rejectedPixels).toBeGreaterThan(0);
     }
   });
 
   it('gives the same sums with a dark frame and a spectral axis along y', () => {
     const frame = damagedFrame(300, 520, 7, 3000);
     const dark = { ...damagedFrame(300, 520, 8, 3000), data: new Float32Array(300 * 520).map((_, i) => 90 + (i % 7)) };
-    const options: ReduceOptions = { spectralAxis: 'y', rejectOutliers: false, dark, saturationLevel: 2900, signal: { start: 100, end: 200 }, background: [{ start: 0, end: 60 }] };
-    const [wasm, js] = reduceBoth(frame, options);
-    expectIdentical(wasm, js);
-    const [wasmX, jsX] = reduceBoth(frame, { ...options, spectralAxis: 'x', signal: { start: 150, end: 450 }, background: [{ start: 0, end: 100 }] });
-    expectIdentical(wasmX, jsX);
+    for (const rejectOutliers of [false, true]) {
+      const options: ReduceOptions = { spectralAxis: 'y', rejectOutliers, dark, saturationLevel: 2900, signal: { start: 100, end: 200 }, background: [{ start: 0, end: 60 }] };
+      const [wasm, js] = reduceBoth(frame, options);
+      expectIdentical(wasm, js);
+      const [wasmX, jsX] = reduceBoth(frame, { ...options, spectralAxis: 'x', signal: { start: 150, end: 450 }, background: [{ start: 0, end: 100 }] });
+      expectIdentical(wasmX, jsX);
+    }
   });
 
-  it('keeps no state between frames of different lengths', () => {
+  it.each([false, true])('keeps no state between frames of different lengths (rejection %s)', (rejectOutliers) => {
     const small = damagedFrame(64, 300, 11, 3000);
     const large = damagedFrame(1000, 300, 12, 3000);
-    const options: ReduceOptions = { spectralAxis: 'x', rejectOutliers: false, signal: { start: 100, end: 200 }, background: [{ start: 0, end: 80 }] };
+    const options: ReduceOptions = { spectralAxis: 'x', rejectOutliers, signal: { start: 100, end: 200 }, background: [{ start: 0, end: 80 }] };
     setWasmKernels(false);
     const expected = [reduceFrame(small, options), reduceFrame(large, options), reduceFrame(small, options)];
     setWasmKernels(true);

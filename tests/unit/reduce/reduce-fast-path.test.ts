@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { setWasmKernels } from '../../../shared/engine/reduce/kernels/plain-group.ts';
+import { setWasmKernels } from '../../../shared/engine/reduce/kernels/band-groups.ts';
 import { reduceFrame, type ReduceOptions } from '../../../shared/engine/reduce.ts';
 import type { Frame, Lineout } from '../../../shared/engine/types.ts';
 import { reduceFrameStraightforward } from './support/straightforward/reduce-frame.ts';
@@ -68,8 +68,8 @@ function expectSameLineout(fast: Lineout, plain: Lineout): void {
 
 const explicitBands = { signal: { start: 40, end: 81 }, background: [{ start: 0, end: 30 }, { start: 92, end: 120 }] };
 
-// Both kernels of the unrejected four-row groups: WebAssembly SIMD where the runtime has it
-// (Node, current browsers), and the JavaScript one it falls back to.
+// Both kinds of four-row group kernel: WebAssembly SIMD where the runtime has it (Node, current
+// browsers), and the JavaScript ones it falls back to.
 describe.each([
   ['the WebAssembly kernel', true],
   ['the JavaScript kernel', false],
