@@ -1,3 +1,4 @@
+import { bandGroupKernels } from './kernels/band-groups.ts';
 import { GROUP_ROWS, type RowCleaner } from './outliers.ts';
 
 /** sum[p] += row[p]: a function per row so V8 optimises it whole (see strip.ts sumAndMin). */
@@ -71,7 +72,12 @@ function addPlainGroup(r0: Float32Array, r1: Float32Array, r2: Float32Array, r3:
  */
 export function addCleanRows(cleaner: RowCleaner, start: number, end: number, sum: Float64Array): number {
   const L = sum.length;
-  const candidates = new Int32Array(L);
+  // Without rejection the four-row sums run in WebAssembly where it is there, into the kernels'
+  // own running sum (copied back at the end).
+  const kernel = cleaner.rejectsHot ? undefined : bandGroupKernels(L);
+  const total = kernel ? kernel.counts : sum;
+  if (kernel) total.set(sum);
+  const candidates = kernel ? kernel.candidates : new Int32Array(L);
   const pending = new Float64Array(GROUP_ROWS * L);
   const screen = cleaner.screenThreshold;
   let rejected = 0;
@@ -80,9 +86,10 @@ export function addCleanRows(cleaner: RowCleaner, start: number, end: number, su
     const plain = s + GROUP_ROWS <= end && !cleaner.rejectsHot && cleaner.loadPlainGroup(s);
     if (plain || (s + GROUP_ROWS <= end && cleaner.loadGroup(s))) {
       const rows = cleaner.groupRows;
-      const n = plain
-        ? addPlainGroup(rows[2], rows[3], rows[4], rows[5], sum, candidates)
-        : addGroup(rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6], screen, sum, candidates);
+      let n: number;
+      if (!plain) n = addGroup(rows[0], rows[1], rows[2], rows[3], rows[4], rows[5], rows[6], screen, total, candidates);
+      else if (kernel) n = kernel.plainAdd(cleaner.groupData, cleaner.groupBase);
+      else n = addPlainGroup(rows[2], rows[3], rows[4], rows[5], total, candidates);
       for (let j = 0; j < GROUP_ROWS && n > 0; j++) {
         // Row s + j is rows[j + 2]; its screen neighbours (screened groups only) rows[j], rows[j + 1], rows[j + 3].
         const cur = rows[j + 2];
@@ -108,15 +115,16 @@ export function addCleanRows(cleaner: RowCleaner, start: number, end: number, su
       }
       for (let k = 0; k < n; k++) {
         const p = candidates[k];
-        let total = sum[p];
-        for (let j = 0; j < GROUP_ROWS; j++) total += pending[j * L + k];
-        sum[p] = total;
+        let pixelTotal = total[p];
+        for (let j = 0; j < GROUP_ROWS; j++) pixelTotal += pending[j * L + k];
+        total[p] = pixelTotal;
       }
       s += GROUP_ROWS - 1;
       continue;
     }
     rejected += cleaner.clean(s);
-    addInto(sum, cleaner.values);
+    addInto(total, cleaner.values);
   }
+  if (kernel) sum.set(total);
   return rejected;
 }

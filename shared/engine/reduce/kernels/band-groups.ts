@@ -1,7 +1,8 @@
 import { wasmBase64 } from './band-groups-wasm.ts';
 
 /**
- * The four-row band kernels (sum-band.ts fusedPlainGroup and fusedGroup) as WebAssembly SIMD
+ * The four-row band kernels (sum-band.ts fusedPlainGroup and fusedGroup, sum-rows.ts
+ * addPlainGroup) as WebAssembly SIMD
  * (band-groups.wat): the same sums, bit for bit, two to three times quicker than V8's scalar
  * code for them. Its arrays are views on the module's memory: the caller fills `background` and
  * `floorVariance`, keeps its running sums in `counts`, `variance` and `saturated`, and reads each
@@ -20,6 +21,11 @@ export interface BandGroupKernels {
   forgetRows(): void;
   /** fusedPlainGroup on four rows, row j at `data[base[j] + p]`; returns the candidates' count. */
   plainGroup(data: Float32Array, base: Int32Array, halfGain: number, level: number): number;
+  /**
+   * addPlainGroup (sum-rows.ts) on four rows as for {@link plainGroup}, adding into `counts`
+   * (a background pass, done before the band's, which starts `counts` afresh).
+   */
+  plainAdd(data: Float32Array, base: Int32Array): number;
   /** fusedGroup on `rows` = spatial rows s − 2 … s + 4 (s ≥ 2); returns the candidates' count. */
   screenedGroup(rows: Float32Array[], s: number, screen: number, halfGain: number, level: number): number;
 }
@@ -38,6 +44,7 @@ type ScreenedGroupExport = (
 interface Exports {
   memory: WebAssembly.Memory;
   plainGroup: PlainGroupExport;
+  plainAdd: (L: number, rows: number, sum: number, candidates: number) => number;
   screenedGroup: ScreenedGroupExport;
 }
 
@@ -96,6 +103,15 @@ function layout(length: number, exports: Exports): BandGroupKernels {
     }
     return slot * rowBytes;
   };
+  /** Four rows (row j at `data[base[j] + p]`) into slots 0 … 3, in row order. */
+  const loadFourRows = (data: Float32Array, base: Int32Array) => {
+    slotRow.fill(-1, 0, GROUP_ROWS);
+    if (base[1] === base[0] + L && base[2] === base[1] + L && base[3] === base[2] + L) {
+      slots.set(data.subarray(base[0], base[0] + GROUP_ROWS * L));
+      return;
+    }
+    for (let j = 0; j < GROUP_ROWS; j++) slots.set(data.subarray(base[j], base[j] + L), j * L);
+  };
   return {
     length: L,
     background: new Float64Array(buffer, bg, L),
@@ -107,14 +123,12 @@ function layout(length: number, exports: Exports): BandGroupKernels {
     saturated: new Uint8Array(buffer, saturated, L),
     forgetRows: () => slotRow.fill(-1),
     plainGroup(data, base, halfGain, level) {
-      // Slots 0 … 3, in row order.
-      slotRow.fill(-1, 0, GROUP_ROWS);
-      if (base[1] === base[0] + L && base[2] === base[1] + L && base[3] === base[2] + L) {
-        slots.set(data.subarray(base[0], base[0] + GROUP_ROWS * L));
-      } else {
-        for (let j = 0; j < GROUP_ROWS; j++) slots.set(data.subarray(base[j], base[j] + L), j * L);
-      }
+      loadFourRows(data, base);
       return exports.plainGroup(L, 0, bg, fv, counts, variance, bin, candidates, saturated, halfGain, level);
+    },
+    plainAdd(data, base) {
+      loadFourRows(data, base);
+      return exports.plainAdd(L, 0, counts, candidates);
     },
     screenedGroup(rows, s, screen, halfGain, level) {
       const am = slotFor(rows, s, 0);

@@ -1,6 +1,7 @@
 ;; The four-row band kernels of sum-band.ts in WebAssembly with 128-bit SIMD, two spectral
-;; pixels per step in f64x2 lanes: plainGroup (fusedPlainGroup, no rejection) and screenedGroup
-;; (fusedGroup, the cleaner's first screen against the neighbouring rows). Every lane does the
+;; pixels per step in f64x2 lanes: plainGroup (fusedPlainGroup, no rejection), screenedGroup
+;; (fusedGroup, the cleaner's first screen against the neighbouring rows) and plainAdd
+;; (sum-rows.ts addPlainGroup, the background rows' sum). Every lane does the
 ;; JavaScript kernel's operations in the same order (IEEE double, no fused multiply-add), so the
 ;; sums are bit-identical to it; the tests compare the two paths exactly.
 ;;
@@ -265,5 +266,52 @@
         (br $pairs)))
     (if (i32.lt_u (local.get $p) (local.get $L))
       (then (local.set $n (call $screenedPixel (local.get $p) (local.get $n) (local.get $am) (local.get $bm) (local.get $r0) (local.get $r1) (local.get $r2) (local.get $r3) (local.get $r4) (local.get $bg) (local.get $fv) (local.get $counts) (local.get $var) (local.get $bin) (local.get $cand) (local.get $sat) (local.get $screen) (local.get $halfGain) (local.get $level)))))
+    (local.get $n))
+
+  ;; One pixel of plainAdd, scalar: added (returns n), or appended to candidates (returns n + 1).
+  (func $addPixel (param $p i32) (param $n i32) (param $rows i32) (param $stride i32) (param $sum i32) (param $cand i32) (result i32)
+    (local $a i32) (local $o i32) (local $v0 f64) (local $v1 f64) (local $v2 f64) (local $v3 f64) (local $all f64)
+    (local.set $a (i32.add (local.get $rows) (i32.shl (local.get $p) (i32.const 2))))
+    (local.set $v0 (f64.promote_f32 (f32.load (local.get $a))))
+    (local.set $v1 (f64.promote_f32 (f32.load (i32.add (local.get $a) (local.get $stride)))))
+    (local.set $v2 (f64.promote_f32 (f32.load (i32.add (local.get $a) (i32.shl (local.get $stride) (i32.const 1))))))
+    (local.set $v3 (f64.promote_f32 (f32.load (i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const 3))))))
+    (local.set $all (f64.add (f64.add (f64.add (local.get $v0) (local.get $v1)) (local.get $v2)) (local.get $v3)))
+    (if (f64.ne (local.get $all) (local.get $all))
+      (then
+        (i32.store (i32.add (local.get $cand) (i32.shl (local.get $n) (i32.const 2))) (local.get $p))
+        (return (i32.add (local.get $n) (i32.const 1)))))
+    (local.set $o (i32.add (local.get $sum) (i32.shl (local.get $p) (i32.const 3))))
+    (f64.store (local.get $o)
+      (f64.add (f64.add (f64.add (f64.add (f64.load (local.get $o)) (local.get $v0)) (local.get $v1)) (local.get $v2)) (local.get $v3)))
+    (local.get $n))
+
+  ;; sum-rows.ts addPlainGroup: four rows (from `rows` on, stride 4L bytes) added to the f64 `sum`
+  ;; where none is NaN, rows in order; the other pixels go to candidates, their count returned.
+  (func (export "plainAdd") (param $L i32) (param $rows i32) (param $sum i32) (param $cand i32) (result i32)
+    (local $p i32) (local $n i32) (local $stride i32) (local $a i32) (local $o i32)
+    (local $v0 v128) (local $v1 v128) (local $v2 v128) (local $v3 v128) (local $m v128)
+    (local.set $stride (i32.shl (local.get $L) (i32.const 2)))
+    (block $done
+      (loop $pairs
+        (br_if $done (i32.gt_u (i32.add (local.get $p) (i32.const 2)) (local.get $L)))
+        (local.set $a (i32.add (local.get $rows) (i32.shl (local.get $p) (i32.const 2))))
+        (local.set $v0 (f64x2.promote_low_f32x4 (v128.load64_zero (local.get $a))))
+        (local.set $v1 (f64x2.promote_low_f32x4 (v128.load64_zero (i32.add (local.get $a) (local.get $stride)))))
+        (local.set $v2 (f64x2.promote_low_f32x4 (v128.load64_zero (i32.add (local.get $a) (i32.shl (local.get $stride) (i32.const 1))))))
+        (local.set $v3 (f64x2.promote_low_f32x4 (v128.load64_zero (i32.add (local.get $a) (i32.mul (local.get $stride) (i32.const 3))))))
+        (local.set $m (f64x2.add (f64x2.add (f64x2.add (local.get $v0) (local.get $v1)) (local.get $v2)) (local.get $v3)))
+        (if (i64x2.all_true (f64x2.eq (local.get $m) (local.get $m)))
+          (then
+            (local.set $o (i32.add (local.get $sum) (i32.shl (local.get $p) (i32.const 3))))
+            (v128.store (local.get $o)
+              (f64x2.add (f64x2.add (f64x2.add (f64x2.add (v128.load (local.get $o)) (local.get $v0)) (local.get $v1)) (local.get $v2)) (local.get $v3))))
+          (else
+            (local.set $n (call $addPixel (local.get $p) (local.get $n) (local.get $rows) (local.get $stride) (local.get $sum) (local.get $cand)))
+            (local.set $n (call $addPixel (i32.add (local.get $p) (i32.const 1)) (local.get $n) (local.get $rows) (local.get $stride) (local.get $sum) (local.get $cand)))))
+        (local.set $p (i32.add (local.get $p) (i32.const 2)))
+        (br $pairs)))
+    (if (i32.lt_u (local.get $p) (local.get $L))
+      (then (local.set $n (call $addPixel (local.get $p) (local.get $n) (local.get $rows) (local.get $stride) (local.get $sum) (local.get $cand)))))
     (local.get $n))
 )
