@@ -314,18 +314,23 @@ export function bandPedestal(source: RowSource, start: number, end: number): num
   const scratch = new Float64Array(Math.ceil(total / step));
   const { raw, dark } = source;
   let n = 0;
-  // Every step-th pixel of the band's flat (row, pixel) order, walked without a division.
-  let row = start;
+  // Every step-th pixel of the band's flat (row, pixel) order, row by row: p is the next sample's
+  // pixel, carried over into the following row.
   let p = 0;
-  for (let k = 0; k < total; k += step) {
-    const i = rowIndex(source, row) + p;
-    const v = dark ? Math.fround(raw[i] - dark[i]) : raw[i];
-    if (v === v) scratch[n++] = v;
-    p += step;
-    while (p >= L) {
-      p -= L;
-      row++;
+  for (let row = start; row < end; row++) {
+    const base = rowIndex(source, row);
+    if (dark) {
+      for (; p < L; p += step) {
+        const v = Math.fround(raw[base + p] - dark[base + p]);
+        if (v === v) scratch[n++] = v;
+      }
+    } else {
+      for (; p < L; p += step) {
+        const v = raw[base + p];
+        if (v === v) scratch[n++] = v;
+      }
     }
+    p -= L;
   }
   return n > 0 ? medianInPlace(scratch, n) : 0;
 }

@@ -153,6 +153,14 @@ export function bandGroupKernels(length: number): BandGroupKernels | undefined {
   if (instance === undefined) instance = instantiate();
   const ready = instance;
   if (!ready) return undefined;
-  if (kernels?.length !== length) kernels = layout(length, ready);
+  if (kernels?.length !== length) {
+    try {
+      kernels = layout(length, ready);
+    } catch {
+      // No room to grow the module's memory: the JavaScript kernels need none.
+      kernels = undefined;
+      return undefined;
+    }
+  }
   return kernels;
 }
