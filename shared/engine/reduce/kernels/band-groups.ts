@@ -2,9 +2,8 @@ import { wasmBase64 } from './band-groups-wasm.ts';
 
 /**
  * The four-row band kernels (sum-band.ts fusedPlainGroup and fusedGroup, sum-rows.ts
- * addPlainGroup) as WebAssembly SIMD
- * (band-groups.wat): the same sums, bit for bit, two to three times quicker than V8's scalar
- * code for them. Its arrays are views on the module's memory: the caller fills `background` and
+ * addPlainGroup) as WebAssembly SIMD (band-groups.wat): the same sums, bit for bit, about 2.5
+ * times quicker than V8's scalar code for them. Its arrays are views on the module's memory: the caller fills `background` and
  * `floorVariance`, keeps its running sums in `counts`, `variance` and `saturated`, and reads each
  * group's four-row sums from `bin` and the pixels left over from `candidates`.
  */
