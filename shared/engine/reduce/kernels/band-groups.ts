@@ -1,3 +1,4 @@
+import { GROUP_ROWS } from '../outliers.ts';
 import { wasmBase64 } from './band-groups-wasm.ts';
 
 /**
@@ -52,7 +53,6 @@ const PAGE_BYTES = 65536;
 const SLOTS = 8;
 /** Bytes of memory per spectral pixel: the f32 row slots, 4 f64 arrays, an f32 bin, an i32 and a u8. */
 const BYTES_PER_PIXEL = 4 * SLOTS + 32 + 4 + 4 + 1;
-const GROUP_ROWS = 4;
 
 let enabled = true;
 let instance: Exports | null | undefined;
