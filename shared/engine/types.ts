@@ -92,6 +92,12 @@ export interface InstrumentProfile {
   /** Pixel where the nominal diffraction angle `detectorAngleDeg` lands. */
   detectorCenterPixel?: number;
   detectorAngleDeg?: number;
+  /**
+   * Nominal tilt of the detector plane from perpendicular to the central ray, degrees. A
+   * flat-field spectrometer's focal plane (and so its camera) sits well off it. Absent: the
+   * assigner uses a default for the instrument kind and says so in its notes.
+   */
+  detectorTiltDeg?: number;
   /** Spectral pixel count, when known. */
   pixelCount?: number;
   notes?: string;
@@ -123,6 +129,19 @@ export interface CalibrationPoint {
   wavelengthNm: number;
   residualNm: number;
   leaveOneOutResidualNm: number;
+}
+
+/** An absolute reference that fixed the wavelength scale of a calibration. */
+export interface ScaleAnchor {
+  kind: 'known-line' | 'filter-edge';
+  /** Plain label, e.g. "Ar II 46.18 nm" or "Al L2,3 edge (Henke step)". */
+  label: string;
+  pixel: number;
+  pixelSigma: number;
+  /** Photon energy the anchor stands for (first diffraction order), eV. */
+  energyEv: number;
+  /** Its 1-sigma, eV (0 when the user gives it as exact). */
+  energySigmaEv: number;
 }
 
 /**
@@ -159,6 +178,10 @@ export interface Calibration {
    * scale is known only to the driver tolerance and `scaleSigmaRelative` says how well.
    */
   absoluteScale: 'anchored' | 'driver-tolerance';
+  /** What fixed the absolute scale, when something did (known lines, filter edges located on a continuum). */
+  anchors?: ScaleAnchor[];
+  /** Relative 1-sigma of the scale the driver tolerance alone would leave: with `scaleSigmaRelative`, what the anchors bought. */
+  unanchoredScaleSigmaRelative?: number;
   /** Relative 1-sigma uncertainty of the whole scale, added in quadrature to the fit's own band. */
   scaleSigmaRelative: number;
   residualRmsNm: number;
