@@ -42,6 +42,19 @@ export const calibrationSchema = z
     driverSigmaNm: finite.nonnegative(),
     parity: z.enum(['odd', 'all']),
     absoluteScale: z.enum(['anchored', 'driver-tolerance']),
+    anchors: z
+      .array(
+        z.object({
+          kind: z.enum(['known-line', 'filter-edge']),
+          label: z.string(),
+          pixel: finite,
+          pixelSigma: finite.nonnegative(),
+          energyEv: finite.positive(),
+          energySigmaEv: finite.nonnegative(),
+        }),
+      )
+      .optional(),
+    unanchoredScaleSigmaRelative: finite.nonnegative().optional(),
     scaleSigmaRelative: finite.nonnegative(),
     residualRmsNm: finite.nonnegative(),
     reducedChiSquare: finite.nonnegative(),

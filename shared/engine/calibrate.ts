@@ -3,12 +3,14 @@
  * as the `orderly calibrate --json` object. Never throws on bad data: an EngineError becomes a
  * `failed` result with its message.
  */
-import { assignOrders, type AssignResult, type FilterSpec, type Hypothesis } from './assign/index.ts';
+import { assignOrders, unanchoredScaleSigma, type AssignResult, type FilterSpec, type Hypothesis } from './assign/index.ts';
 import { HC_EV_NM } from './constants.ts';
 import { evaluateCalibration, fitGratingMap, fitPolynomialMap, type GratingParameter } from './dispersion/index.ts';
 import { EngineError } from './errors.ts';
+import { matchKnownLines, type KnownLine, type MatchedKnownLines } from './known-lines.ts';
 import { findPeaks } from './peaks.ts';
 import { reduceFrame } from './reduce.ts';
+import { describeAbsoluteScale } from './scale-note.ts';
 import type { Calibration, CalibrationPoint, Frame, InstrumentProfile, LineShape, Lineout, Parity, Peak, SpatialBand } from './types.ts';
 
 export interface CalibrateOptions {
@@ -22,8 +24,13 @@ export interface CalibrateOptions {
   parity?: Parity;
   /** Filters in the beam. @default [] */
   filters?: FilterSpec[];
-  /** User-fixed orders. @default [] */
+  /** User-fixed orders. They fix an order, not the scale. @default [] */
   pins?: { pixel: number; harmonic: number }[];
+  /**
+   * Lines of known first-order photon energy: the detected peak nearest `pixel` (within
+   * max(3 px, 2 FWHM)) is that line. Absolute anchors of the wavelength scale. @default []
+   */
+  knownLines?: KnownLine[];
   dark?: Frame;
   signal?: SpatialBand;
   background?: SpatialBand[];
@@ -104,6 +111,11 @@ function summarise(h: Hypothesis, rank: number): HypothesisSummary {
   };
 }
 
+/** The documented default, given to the assigner explicitly so that the unanchored σ below is the one it used. */
+function driverTolerancePct(options: CalibrateOptions): number {
+  return options.driverTolerancePct ?? 1;
+}
+
 /** Geometry entries to free in the final fit: as many as the points support, the best-determined first. */
 function freeParameters(pointCount: number): GratingParameter[] {
   const order: GratingParameter[] = ['detectorAngleDeg', 'detectorDistanceMm', 'detectorTiltDeg', 'incidenceAngleDeg'];
@@ -159,6 +171,7 @@ function buildCalibration(
   hypothesis: Hypothesis,
   options: CalibrateOptions,
   spectralAxis: 'x' | 'y',
+  known: MatchedKnownLines,
 ): Calibration {
   const pixelCount = lineout.counts.length;
   const points: CalibrationPoint[] = [];
@@ -189,6 +202,9 @@ function buildCalibration(
     driverSigmaNm: assignment.driverSigmaNm,
     parity: options.parity ?? 'odd',
     absoluteScale: assignment.anchored ? 'anchored' : 'driver-tolerance',
+    // Only what the assigner says anchored the scale is listed as having done so.
+    ...(assignment.anchored && known.anchors.length > 0 ? { anchors: known.anchors } : {}),
+    unanchoredScaleSigmaRelative: unanchoredScaleSigma(driverTolerancePct(options)),
     scaleSigmaRelative: assignment.scaleSigmaRelative,
     points,
     filters: (options.filters ?? []).map((f) => (typeof f === 'string' ? f : `${f.material}${f.thicknessNm ? `:${f.thicknessNm}` : ''}`)),
@@ -214,21 +230,27 @@ export function calibrateFrame(frame: Frame, options: CalibrateOptions): Calibra
     peaks = findPeaks(lineout);
     if (peaks.length === 0) return failedResult('no peaks above the noise in the signal band: check the signal region, the exposure and the filters');
     const pixelCount = lineout.counts.length;
+    const known = matchKnownLines(options.knownLines ?? [], peaks, pixelCount);
     const assignment = assignOrders(peaks, {
       profile: options.profile,
       pixelCount,
       driverNm: options.driverNm,
-      driverTolerancePct: options.driverTolerancePct,
+      driverTolerancePct: driverTolerancePct(options),
       parity: options.parity ?? 'odd',
       filters: options.filters,
       pins: options.pins,
+      knownLines: known.assignLines,
     });
     const hypotheses = assignment.hypotheses.map((h, i) => summarise(h, i + 1));
     if (assignment.status === 'failed' || !assignment.best) {
       return { ...failedResult(assignment.message, unlabelled(peaks), assignment.notes), hypotheses };
     }
     const best = assignment.best;
-    const calibration = buildCalibration(lineout, peaks, assignment, best, options, spectralAxis);
+    const calibration = buildCalibration(lineout, peaks, assignment, best, options, spectralAxis, known);
+    calibration.notes.unshift(describeAbsoluteScale(calibration));
+    if (known.anchors.length > 0 && !assignment.anchored) {
+      calibration.notes.unshift(`${known.anchors.length} known line(s) were given, but the order assigner did not use them to anchor the scale.`);
+    }
     if (assignment.status === 'ambiguous') {
       calibration.notes.unshift('AMBIGUOUS: this map belongs to the best of several hypotheses the data could not tell apart; do not use it before an order is pinned or an anchor decides.');
     }

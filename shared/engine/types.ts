@@ -174,8 +174,9 @@ export interface Calibration {
   driverSigmaNm: number;
   parity: Parity;
   /**
-   * 'anchored' when an edge, known line or pin fixed the absolute scale; otherwise the absolute
-   * scale is known only to the driver tolerance and `scaleSigmaRelative` says how well.
+   * 'anchored' when the order assigner fixed the absolute scale on the references in `anchors`
+   * (known lines); otherwise the absolute scale is known only to the driver tolerance and
+   * `scaleSigmaRelative` says how well. A pin fixes an order, not the scale.
    */
   absoluteScale: 'anchored' | 'driver-tolerance';
   /** What fixed the absolute scale, when something did (known lines, filter edges located on a continuum). */
