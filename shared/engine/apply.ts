@@ -257,7 +257,12 @@ export function applyCalibration(lineout: Lineout, peaks: readonly Peak[], cal: 
 
   const orders: AppliedOrder[] = [];
   if (lambdaMax > 0) {
-    const predictions = predictOrders(cal, o.parity ?? cal.parity, lambdaMin, lambdaMax, wavelengthSigmaNm, slope, o.maxDiffractionOrder, n);
+    // The scale term moves the whole axis and the driver wavelength together, not a harmonic's
+    // pixel: lines are matched against the fit-only band.
+    const scale = cal.scaleSigmaRelative ?? 0;
+    const fitOnlySigmaNm = new Float64Array(n);
+    for (let i = 0; i < n; i++) fitOnlySigmaNm[i] = Math.sqrt(Math.max(0, wavelengthSigmaNm[i] ** 2 - (wavelengthNm[i] * scale) ** 2));
+    const predictions = predictOrders(cal, o.parity ?? cal.parity, lambdaMin, lambdaMax, fitOnlySigmaNm, slope, o.maxDiffractionOrder, n);
     const matches = matchPeaks(predictions, peaks, o.toleranceSigma, o.maxSpacingFraction);
     const dropped = dropImplausibleHigherOrders(predictions, matches, peaks);
     if (dropped.reason) notes.push(dropped.reason);

@@ -32,9 +32,10 @@
  *   scale: pins do not make a calibration anchored.
  */
 import { EngineError } from '../errors.ts';
-import { nominalGeometry, wavelengthToPixel } from '../grating.ts';
+import { pixelToWavelengthNm, wavelengthToPixel } from '../grating.ts';
 import type { Peak } from '../types.ts';
 import { stackTransmission } from './filters.ts';
+import { buildPriors, DEFAULT_BLUE_SHIFT_PCT, DEFAULT_DRIVER_SIGMA_PCT, DEFAULT_RANGES, driverPriorMoments, driverSpanNm } from './priors.ts';
 import {
   geometryOf,
   predictPixel,
@@ -67,25 +68,20 @@ import {
   type SearchContext,
   type SearchPeak,
 } from './search.ts';
-import type { AssignInput, AssignResult, Hypothesis, PeakLabel, RealignmentRanges } from './types.ts';
+import type { AssignInput, AssignResult, Hypothesis, PeakLabel } from './types.ts';
+import { decideVerdict } from './verdict.ts';
 
-export type { AssignInput, AssignResult, Hypothesis, PeakLabel, RealignmentRanges, FilterSpec } from './types.ts';
+export type { AssignInput, AssignResult, Hypothesis, PeakLabel, RealignmentRanges, FilterSpec, VerdictGate } from './types.ts';
 
-export const DEFAULT_RANGES: RealignmentRanges = {
-  incidenceDeg: 0.5,
-  distanceRelative: 0.04,
-  centerRelative: 0.06,
-  detectorAngleDeg: 0.3,
-  // The profile carries no detector tilt, so it is a nuisance parameter over a wide range (flat-field
-  // cameras sit several degrees off the central ray's normal; common practice).
-  tiltDeg: 10,
-};
+export { DEFAULT_RANGES, unanchoredScaleSigma } from './priors.ts';
 
 /** Margin in −2 ln L for `unique` (≈ 4σ). */
 export const UNIQUE_MARGIN = 16;
 /** Smallest centroid uncertainty believed, px (sub-0.005 px claims are numerical, not physical). */
 const SIGMA_FLOOR_PX = 0.005;
-const MAX_GROWN_SEEDS = 8;
+const MAX_GROWN_SEEDS = 12;
+/** Slips of one seed pattern grown at most (the most plausible geometry of a pattern need not be the true slip when the walls are wide). */
+const MAX_GROWN_PER_PATTERN = 3;
 /** Extra seeds grown because they explain more strong peaks once m = 2 lines count (see searchCandidates). */
 const MAX_SECOND_ORDER_SEEDS = 2;
 /** A one-step slip trailing by this many unique margins makes the two-step slip in that direction pointless to fit. */
@@ -94,18 +90,21 @@ const HOPELESS_SLIP_MARGINS = 50;
 const EDGE_FWHM = 1.5;
 /** Position uncertainty of an edge peak, in FWHM (a truncated line's centre can be off by a fair part of its width). */
 const EDGE_SIGMA_FWHM = 0.15;
+/**
+ * Largest spatial width of an m = 2 line relative to the m = 1 lines beside it: with its m = 1
+ * partner seen, and without (divergence ∝ roughly 1/√q, so the m = 2 line of q beside the m = 1
+ * line of q/2 is about 1/√2 as wide; common practice).
+ */
+const PARTNERED_WIDTH_RATIO = 0.95;
+const UNPARTNERED_WIDTH_RATIO = 0.8;
 /** Position uncertainty floor of a saturated peak, in FWHM. */
 const SATURATED_SIGMA_FWHM = 0.01;
-
-/** Relative 1σ of the scale when only the driver tolerance bounds it: ±2σ = central 95 % of U[−tol/2, tol/2]. */
-export function unanchoredScaleSigma(tolerancePct: number): number {
-  return (0.95 * (tolerancePct / 100)) / 4;
-}
 
 function failed(message: string, notes: string[] = []): AssignResult {
   return {
     status: 'failed',
     message,
+    gates: [],
     hypotheses: [],
     best: null,
     anchored: false,
@@ -117,32 +116,31 @@ function failed(message: string, notes: string[] = []): AssignResult {
   };
 }
 
-function wall(lo: number, hi: number, softness: number): Wall {
-  return { lo, hi, softness };
-}
-
 interface Prepared {
   ctx: SearchContext;
   /** usable index → index in the caller's peak array. */
   original: number[];
-  tol: number;
   notes: string[];
 }
 
 function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
   const { profile, pixelCount, driverNm, parity } = input;
-  const tolPct = input.driverTolerancePct ?? 1;
+  const sigmaPct = input.driverTolerancePct ?? DEFAULT_DRIVER_SIGMA_PCT;
+  const blueShiftPct = input.blueShiftPct ?? DEFAULT_BLUE_SHIFT_PCT;
   if (!Number.isFinite(driverNm) || driverNm <= 0) return 'The driver wavelength must be a positive number of nm.';
-  if (!Number.isFinite(tolPct) || tolPct < 0 || tolPct >= 50) return 'The driver tolerance must be a percentage from 0 to 50.';
+  if (!Number.isFinite(sigmaPct) || sigmaPct < 0 || sigmaPct >= 10) return 'The driver tolerance (1σ) must be a percentage from 0 to 10.';
+  if (!Number.isFinite(blueShiftPct) || blueShiftPct < 0 || blueShiftPct >= 10) return 'The blue-shift allowance must be a percentage from 0 to 10.';
   if (!Number.isInteger(pixelCount) || pixelCount < 8) return 'The spectral pixel count must be an integer of at least 8.';
   if (parity !== 'odd' && parity !== 'all') return "Parity must be 'odd' or 'all'.";
   for (const key of ['grooveDensityPerMm', 'detectorDistanceMm', 'pixelPitchUm'] as const) {
     if (!(Number.isFinite(profile[key]) && profile[key] > 0)) return `The instrument profile's ${key} must be a positive number.`;
   }
   if (!(Number.isFinite(profile.incidenceAngleDeg) && Math.abs(profile.incidenceAngleDeg) < 90)) return "The instrument profile's incidenceAngleDeg must lie between −90° and 90°.";
+  if (profile.detectorTiltDeg !== undefined && !(Number.isFinite(profile.detectorTiltDeg) && Math.abs(profile.detectorTiltDeg) < 45)) return "The instrument profile's detectorTiltDeg must lie between −45° and 45°.";
   const ranges = { ...DEFAULT_RANGES, ...(input.ranges ?? {}) };
-  const tol = tolPct / 100;
-  const { geometry, centralAngleKnown } = nominalGeometry(profile, pixelCount);
+  const driver = { nominalNm: driverNm, sigmaRelative: sigmaPct / 100, blueShiftRelative: blueShiftPct / 100 };
+  const priors = buildPriors(profile, pixelCount, driver, ranges);
+  const centralAngleKnown = priors.centralAngleKnown;
   let transmission: (e: number) => number;
   try {
     transmission = input.transmission ?? stackTransmission(input.filters ?? []);
@@ -177,24 +175,8 @@ function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
     };
   });
 
-  const lambdaCentre = driverNm * (1 - tol / 2);
-  const nominal = new Float64Array(PARAMETER_COUNT);
-  nominal[P_CENTER] = geometry.detectorCenterPixel;
-  nominal[P_ANGLE] = centralAngleKnown ? geometry.detectorAngleDeg : 0;
-  nominal[P_INCIDENCE] = geometry.incidenceAngleDeg;
-  nominal[P_DISTANCE] = geometry.detectorDistanceMm;
-  nominal[P_DRIVER] = lambdaCentre;
-  nominal[P_TILT] = 0;
-  const cr = ranges.centerRelative * pixelCount;
-  const L = geometry.detectorDistanceMm;
-  const walls: (Wall | null)[] = [
-    wall(nominal[P_CENTER] - cr, nominal[P_CENTER] + cr, 0.02 * cr),
-    centralAngleKnown ? wall(nominal[P_ANGLE] - ranges.detectorAngleDeg, nominal[P_ANGLE] + ranges.detectorAngleDeg, 0.02 * ranges.detectorAngleDeg + 1e-4) : null,
-    wall(nominal[P_INCIDENCE] - ranges.incidenceDeg, nominal[P_INCIDENCE] + ranges.incidenceDeg, 0.02 * ranges.incidenceDeg + 1e-4),
-    wall(L * (1 - ranges.distanceRelative), L * (1 + ranges.distanceRelative), 0.02 * ranges.distanceRelative * L + 1e-6),
-    wall(driverNm * (1 - tol), driverNm, 0.02 * tol * driverNm + 1e-9 * driverNm),
-    wall(-ranges.tiltDeg, ranges.tiltDeg, 0.02 * ranges.tiltDeg + 1e-4),
-  ];
+  const { nominal, walls } = priors;
+  const L = nominal[P_DISTANCE];
   const steps = Float64Array.from([1e-3, 1e-6, 1e-6, 1e-5 * L, 1e-7 * driverNm, 1e-5]);
   const model: ModelContext = {
     grooveDensityPerMm: profile.grooveDensityPerMm,
@@ -232,8 +214,9 @@ function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
     if (pins.has(bestIndex) && pins.get(bestIndex) !== pin.harmonic) return `Two pins disagree about the peak at pixel ${searchPeaks[bestIndex].pixel.toFixed(2)}.`;
     pins.set(bestIndex, pin.harmonic);
   }
-  const notes: string[] = [];
+  const notes: string[] = [...priors.notes];
   const ctx: SearchContext = {
+    driver,
     model,
     peaks: searchPeaks,
     parity,
@@ -244,7 +227,7 @@ function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
     pins,
     opaqueTransmission: opaqueTransmission(searchPeaks.reduce((m, p) => Math.max(m, p.snr), 0)),
   };
-  return { ctx, original: usable.map((u) => u.index), tol, notes };
+  return { ctx, original: usable.map((u) => u.index), notes };
 }
 
 /** Whether the nonzero labels run strictly one way along the pixels (down when wavelength increases with pixel). */
@@ -259,32 +242,21 @@ function monotonicLabels(harmonic: Int32Array, wavelengthIncreasesWithPixel: boo
   return true;
 }
 
-/** Harmonics that peak `i` can be, given the realignment ranges (for the seeds). */
-function candidateHarmonics(ctx: SearchContext, i: number, tol: number): [number, number] {
-  const lambda0Hi = ctx.model.nominal[P_DRIVER] / (1 - tol / 2);
-  const lambda0Lo = lambda0Hi * (1 - tol);
+/** Harmonics that peak `i` can be, given the walls of every parameter (for the seeds). */
+function candidateHarmonics(ctx: SearchContext, i: number): [number, number] {
+  const [lambda0Lo, lambda0Hi] = driverSpanNm(ctx.driver);
   if (!ctx.angleKnown) return [1, Math.max(1, Math.min(400, Math.floor(lambda0Hi / 1)))];
   let lo = Infinity;
   let hi = -Infinity;
   const p = Float64Array.from(ctx.model.nominal);
   const w = ctx.model.walls;
-  for (let corner = 0; corner < 32; corner++) {
-    const pick = (bit: number, k: number): number => {
+  const varied = [P_CENTER, P_ANGLE, P_INCIDENCE, P_DISTANCE, P_TILT];
+  for (let corner = 0; corner < 1 << varied.length; corner++) {
+    varied.forEach((k, bit) => {
       const wk = w[k] as Wall;
-      return corner & (1 << bit) ? wk.hi : wk.lo;
-    };
-    p[P_CENTER] = pick(0, P_CENTER);
-    p[P_ANGLE] = pick(1, P_ANGLE);
-    p[P_INCIDENCE] = pick(2, P_INCIDENCE);
-    p[P_DISTANCE] = pick(3, P_DISTANCE);
-    p[P_TILT] = pick(4, P_TILT);
-    const g = geometryOf(ctx.model, p);
-    const sinAlpha = Math.sin((g.incidenceAngleDeg * Math.PI) / 180);
-    const dir = g.wavelengthIncreasesWithPixel ? -1 : 1;
-    const sMm = (ctx.peaks[i].pixel - g.detectorCenterPixel) * g.pixelPitchUm * 1e-3;
-    const t = (g.detectorTiltDeg * Math.PI) / 180;
-    const beta = (g.detectorAngleDeg * Math.PI) / 180 + dir * Math.atan2(sMm * Math.cos(t), g.detectorDistanceMm + sMm * Math.sin(t));
-    const lambda = (1e6 / g.grooveDensityPerMm) * (sinAlpha - Math.sin(beta));
+      p[k] = corner & (1 << bit) ? wk.hi : wk.lo;
+    });
+    const lambda = pixelToWavelengthNm(geometryOf(ctx.model, p), ctx.peaks[i].pixel, 1);
     if (lambda > 0) {
       lo = Math.min(lo, lambda);
       hi = Math.max(hi, lambda);
@@ -369,10 +341,14 @@ function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8A
     const margin = EDGE_FWHM * pk.fwhmPx;
     if (a1 === undefined && partnerPx !== undefined && partnerPx > margin && partnerPx < ctx.model.pixelCount - 1 - margin) continue;
     // Divergence falls with harmonic order: the m = 2 line of q is narrower than the m = 1 line of ~q/2 beside it.
-    if (Number.isFinite(pk.spatialWidthPx) && firstOrderWidth.length >= 2) {
+    // Without its m = 1 partner in view (off the detector), position alone would take any stray
+    // line that happens to sit on an m = 2 position: then a clearly narrower profile is required.
+    const widthKnown = Number.isFinite(pk.spatialWidthPx) && firstOrderWidth.length >= 2;
+    if (a1 === undefined && !widthKnown) continue;
+    if (widthKnown) {
       const near = [...firstOrderWidth].sort((a, b) => Math.abs(a.px - pk.pixel) - Math.abs(b.px - pk.pixel)).slice(0, 2);
       const w1 = (near[0].w + near[1].w) / 2;
-      if (pk.spatialWidthPx > 0.95 * w1) continue;
+      if (pk.spatialWidthPx > (a1 === undefined ? UNPARTNERED_WIDTH_RATIO : PARTNERED_WIDTH_RATIO) * w1) continue;
     }
     harmonic[i] = q;
     order[i] = 2;
@@ -477,7 +453,7 @@ function patternKey(implied: [number, number][]): string {
 }
 
 /** Seeds: (pair of neighbouring peaks, their harmonics) → starting labelling and parameters. */
-function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
+function searchCandidates(ctx: SearchContext): Candidate[] {
   const n = ctx.peaks.length;
   const step = harmonicStep(ctx.parity);
   const kMax = ctx.parity === 'odd' ? 3 : 4;
@@ -533,8 +509,8 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
   }
   const seeds: Seed[] = [];
   for (const [a, b] of pairs) {
-    const [qLo, qHi] = candidateHarmonics(ctx, a, tol);
-    const [qbLo, qbHi] = candidateHarmonics(ctx, b, tol);
+    const [qLo, qHi] = candidateHarmonics(ctx, a);
+    const [qbLo, qbHi] = candidateHarmonics(ctx, b);
     const near = adjacent.has(`${a},${b}`);
     for (let qa = qLo; qa <= qHi; qa++) {
       if (!allowedHarmonic(ctx.parity, qa)) continue;
@@ -557,7 +533,7 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
         let seedCost: number;
         if (ctx.angleKnown) {
           // Linear placement of the pair (no iterative fit): most seeds die here for free.
-          const lin = linearSeed(ctx, a, qa, b, qb, tol);
+          const lin = linearSeed(ctx, a, qa, b, qb);
           if (!lin) continue;
           seedParams = lin.start;
           seedCost = lin.cost;
@@ -610,7 +586,7 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
   }
   seeds.sort((x, y) => y.matches - x.matches || y.matchesAll - x.matchesAll || x.cost - y.cost);
   const grownKeys = new Set<string>();
-  const grownPatterns = new Set<string>();
+  const grownPatterns = new Map<string, number>();
   const grownLabellings: Int32Array[] = [];
   const out = new Map<string, Candidate>();
   let grown = 0;
@@ -620,18 +596,20 @@ function searchCandidates(ctx: SearchContext, tol: number): Candidate[] {
     if (grownKeys.has(seed.key)) return false;
     grownKeys.add(seed.key);
     // Seeds that differ only by a uniform shift of their implied harmonics are slips of one
-    // pattern: grow the most plausible one; the slips of the leading labelling are fitted in
+    // pattern: grow the most plausible few (with wide walls the most plausible geometry need not
+    // belong to the true slip); the slips of the leading labelling are fitted in
     // earnest afterwards (shiftedRivals).
     // With pins a shifted copy is not the same hypothesis (the pins break the shift symmetry).
     const pattern = ctx.pins.size > 0 ? seed.key + Array.from(seed.harmonic).join('/') : patternKey(seed.implied);
-    if (grownPatterns.has(pattern)) return false;
-    if (ctx.pins.size === 0) grownPatterns.add(pattern);
+    const grownOfPattern = grownPatterns.get(pattern) ?? 0;
+    if (grownOfPattern >= (ctx.pins.size === 0 ? MAX_GROWN_PER_PATTERN : 1)) return false;
+    if (ctx.pins.size === 0) grownPatterns.set(pattern, grownOfPattern + 1);
     // A seed whose implied labels a grown labelling already carries would grow into that labelling.
     if (grownLabellings.some((h) => seed.implied.every(([i, q]) => h[i] === q))) return false;
     const lab = grow(ctx, seed.harmonic, seed.start);
     if (!lab) return true;
     // With pins, only a seed that grew stands for its pattern: a failed one must not hide the others.
-    grownPatterns.add(pattern);
+    if (ctx.pins.size > 0) grownPatterns.set(pattern, 1);
     grownLabellings.push(lab.harmonic);
     let ok = true;
     for (const [p, q] of ctx.pins) if (lab.harmonic[p] !== q) ok = false;
@@ -871,15 +849,13 @@ export function assignOrders(peaks: Peak[], input: AssignInput): AssignResult {
 function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
   const prepared = prepare(peaks, input);
   if (typeof prepared === 'string') return failed(prepared);
-  const { ctx, original, tol } = prepared;
-  const notes = [
-    `Assumed: the effective driver wavelength lies between ${(input.driverNm * (1 - tol)).toFixed(3)} nm and ${input.driverNm.toFixed(3)} nm (harmonics blue-shift with ionisation).`,
-  ];
+  const { ctx, original } = prepared;
+  const notes = [...prepared.notes];
   if (ctx.peaks.length < 2 || (ctx.peaks.length < 3 && ctx.pins.size === 0 && !ctx.anchored && ctx.peaks.length < 2)) {
     return failed(`Only ${ctx.peaks.length} usable peak(s) on the detector; at least 2 are needed to assign orders (3 or more to decide them without a pin).`, notes);
   }
   if (!ctx.angleKnown) notes.push('The profile gives no central diffraction angle; it was searched over all angles.');
-  const candidates = searchCandidates(ctx, tol);
+  const candidates = searchCandidates(ctx);
   let viable = candidates.filter((c) => c.raw.firstOrderCount >= 2);
   if (viable.length > 0) {
     // Make sure the slips of the leading labelling are in the pool, fitted in earnest.
@@ -920,7 +896,7 @@ function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
     notes.push('The absolute scale is anchored by known-wavelength line(s); the driver wavelength was fitted.');
   } else {
     driverNm = ctx.model.nominal[P_DRIVER];
-    scaleSigmaRelative = unanchoredScaleSigma(tol * 100);
+    scaleSigmaRelative = driverPriorMoments(ctx.driver).sigmaRelative;
     driverSigmaNm = scaleSigmaRelative * driverNm;
     notes.push(
       `No absolute anchor: the driver wavelength is taken as ${driverNm.toFixed(3)} nm, the middle of its tolerance, so the whole wavelength scale is uncertain by ±${(200 * scaleSigmaRelative).toFixed(2)} % (2σ). A filter edge seen on a continuum, a known line or a geometry measured after the realignment would pin it.`,
@@ -939,28 +915,39 @@ function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
     reducedChiSquare: reducedChi,
     notes,
   };
-  if (reducedChi > 2500) {
-    return { ...base, status: 'failed', message: `The best labelling fits the peaks badly (reduced χ² ${reducedChi.toFixed(0)}); the profile or the driver wavelength is probably wrong.` };
-  }
-  const lineWord = `${best.raw.firstOrderCount} first-order line(s) q = ${bestHyp.firstHarmonic}–${bestHyp.lastHarmonic}`;
+  const lineWord = `${best.raw.firstOrderCount} first-order line(s) q = ${bestHyp.firstHarmonic}–${bestHyp.lastHarmonic}${best.raw.secondOrderCount ? `, ${best.raw.secondOrderCount} m = 2 line(s)` : ''}${best.raw.unexplainedCount ? `, ${best.raw.unexplainedCount} unexplained peak(s)` : ''}`;
   const delta = runnerUp ? totalScore(runnerUp.raw, s2) - bestScore : Infinity;
-  const enoughLines = best.raw.firstOrderCount >= 3 || ctx.pins.size > 0 || ctx.anchored;
-  if (delta >= margin && enoughLines) {
+  const verdict = decideVerdict({
+    ctx,
+    harmonic: best.harmonic,
+    order: best.order,
+    fit: best.fit,
+    points: best.points,
+    firstOrderCount: best.raw.firstOrderCount,
+    margin: delta,
+    uniqueMargin: margin,
+    blended: new Set(best.blends.keys()),
+  });
+  const gates = verdict.gates.map((g) => ({ ...g }));
+  if (verdict.status === 'unique') {
     const rival = runnerUp ? ` The next labelling trails by ${delta.toFixed(1)} in −2 ln L.` : ' No other labelling fits within the ranges.';
-    return { ...base, status: 'unique', message: `Orders assigned: ${lineWord}${best.raw.secondOrderCount ? `, ${best.raw.secondOrderCount} m = 2 line(s)` : ''}${best.raw.unexplainedCount ? `, ${best.raw.unexplainedCount} unexplained peak(s)` : ''}.${rival}` };
+    return { ...base, gates, status: 'unique', message: `Orders assigned: ${lineWord}.${rival}` };
   }
+  const failedGates = verdict.gates.filter((g) => g.passed === false);
+  if (verdict.status === 'failed') {
+    return { ...base, gates, status: 'failed', message: `No labelling fits: the best one (${lineWord}) fits the peaks badly (χ²/ν ${verdict.reducedChiSquareFloored.toFixed(0)}); the profile or the driver wavelength is probably wrong.` };
+  }
+  const marginGate = failedGates.find((g) => g.name === 'margin');
   let detail = '';
-  if (runnerUp) {
+  if (marginGate && runnerUp) {
     const i = best.harmonic.findIndex((h, k) => h > 0 && runnerUp.harmonic[k] > 0 && (h !== runnerUp.harmonic[k] || best.order[k] !== runnerUp.order[k]));
-    if (i >= 0) {
-      detail = ` The peak at pixel ${ctx.peaks[i].pixel.toFixed(1)} is harmonic ${best.harmonic[i]} in the best labelling and ${runnerUp.harmonic[i]} in the next, which trails by only ${delta.toFixed(1)} (unique needs ${margin}).`;
-    }
-  } else {
-    detail = ` Only ${best.raw.firstOrderCount} first-order line(s) were found.`;
+    if (i >= 0) detail = ` The peak at pixel ${ctx.peaks[i].pixel.toFixed(1)} is harmonic ${best.harmonic[i]} in the best labelling and ${runnerUp.harmonic[i]} in the next, which trails by only ${delta.toFixed(1)} (unique needs ${margin}).`;
   }
+  const others = failedGates.filter((g) => g.name !== 'margin' || !detail).map((g) => ` The leading labelling (${lineWord}) fails the ${g.name} gate: ${g.detail}.`);
   return {
     ...base,
+    gates,
     status: 'ambiguous',
-    message: `The data cannot decide the orders.${detail} A pin on one peak, a filter whose absorption edge falls inside the spectrum, a known line, or a narrower realignment range would decide it.`,
+    message: `The data cannot decide the orders.${detail}${others.join('')} A pin on one peak, a filter whose absorption edge falls inside the spectrum, a known line, or a narrower realignment range would decide it.`,
   };
 }

@@ -26,6 +26,7 @@ import {
 } from './model.ts';
 import type { Parity } from '../types.ts';
 import { spuriousCost } from './score.ts';
+import { driverSpanNm, type DriverPrior } from './priors.ts';
 
 /** A peak as the search sees it (index = position in the usable list). */
 export interface SearchPeak {
@@ -45,6 +46,8 @@ export interface SearchPeak {
 
 export interface SearchContext {
   model: ModelContext;
+  /** The driver prior (measured wavelength, its σ, the blue-shift allowance). */
+  driver: DriverPrior;
   peaks: SearchPeak[];
   parity: Parity;
   angleKnown: boolean;
@@ -226,26 +229,30 @@ export function seedStart(ctx: SearchContext, peakIndex: number, q: number): Flo
 const DEG = Math.PI / 180;
 
 /**
- * A seed without an iterative fit: with the nominal incidence, tilt 0 and λ0 at the middle of its
- * tolerance, a flat detector puts first-order λ at p = c + L·tan(β(λ) − β0)/pitch, which is linear
- * in the centre c and the distance L. Two labelled peaks fix both exactly. The seed is kept when L
- * and c lie within what the realignment ranges (plus what the incidence, tilt and λ0 ranges can
+ * A seed without an iterative fit: with the nominal incidence, tilt θ and λ0, a flat detector
+ * puts first-order λ at s = L·t/(cos θ − t·sin θ), t = tan(β(λ) − β0) (grating.ts), which is
+ * linear in the centre c and the distance L. Two labelled peaks fix both exactly. The seed is
+ * kept when L and c lie within what the walls (plus what the incidence, tilt and λ0 ranges can
  * mimic: a stretch of ±15 % and a shift of L·Δβ/pitch) allow. Returns the parameters and a
  * plausibility cost (relative stretch and shift beyond the walls), or null.
  */
-export function linearSeed(ctx: SearchContext, a: number, qa: number, b: number, qb: number, tol: number): { start: Float64Array; cost: number } | null {
+export function linearSeed(ctx: SearchContext, a: number, qa: number, b: number, qb: number): { start: Float64Array; cost: number } | null {
   const m = ctx.model;
   const p = Float64Array.from(m.nominal);
   const d = 1e6 / m.grooveDensityPerMm;
   const alpha = p[P_INCIDENCE] * DEG;
   const beta0 = p[P_ANGLE] * DEG;
+  const tilt = p[P_TILT] * DEG;
   const dir = m.wavelengthIncreasesWithPixel ? -1 : 1;
   const pitchMm = m.pixelPitchUm * 1e-3;
   const u = (q: number): number => {
     const sinBeta = Math.sin(alpha) - p[P_DRIVER] / q / d;
     if (Math.abs(sinBeta) >= 1) return Number.NaN;
     const off = dir * (Math.asin(sinBeta) - beta0);
-    return Math.abs(off) < Math.PI / 2 - 1e-3 ? Math.tan(off) : Number.NaN;
+    if (!(Math.abs(off) < Math.PI / 2 - 1e-3)) return Number.NaN;
+    const t = Math.tan(off);
+    const denominator = Math.cos(tilt) - t * Math.sin(tilt);
+    return denominator > 0 ? t / denominator : Number.NaN;
   };
   const ua = u(qa);
   const ub = u(qb);
@@ -263,9 +270,11 @@ export function linearSeed(ctx: SearchContext, a: number, qa: number, b: number,
   const cWall = m.walls[P_CENTER] as Wall;
   const incWall = m.walls[P_INCIDENCE] as Wall;
   const lambdaA = p[P_DRIVER] / qa;
+  const [lambdaLo, lambdaHi] = driverSpanNm(ctx.driver);
+  const driverSpread = (lambdaHi - lambdaLo) / 2 / p[P_DRIVER];
   const cosBeta = Math.sqrt(Math.max(1e-9, 1 - (Math.sin(alpha) - lambdaA / d) ** 2));
   const dAlpha = ((incWall.hi - incWall.lo) / 2) * DEG;
-  const shiftFree = (L * (dAlpha * Math.abs(Math.cos(alpha)) / cosBeta + (tol * lambdaA) / (d * cosBeta))) / pitchMm + 0.02 * m.pixelCount;
+  const shiftFree = (L * (dAlpha * Math.abs(Math.cos(alpha)) / cosBeta + (driverSpread * lambdaA) / (d * cosBeta))) / pitchMm + 0.02 * m.pixelCount;
   const beyond = c < cWall.lo ? cWall.lo - c : c > cWall.hi ? c - cWall.hi : 0;
   if (beyond > shiftFree) return null;
   p[P_CENTER] = c;

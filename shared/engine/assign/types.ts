@@ -8,13 +8,13 @@ export type FilterSpec = string | { material: string; thicknessNm?: number };
 export interface RealignmentRanges {
   /** Half-range of the incidence angle, degrees. @default 0.5 */
   incidenceDeg: number;
-  /** Half-range of the grating–detector distance, relative. @default 0.04 */
+  /** Half-range of the grating–detector distance, relative. @default 0.1 */
   distanceRelative: number;
   /** Half-range of the detector centre pixel, as a fraction of the pixel count. @default 0.06 */
   centerRelative: number;
-  /** Half-range of the central diffraction angle when the profile states it, degrees. @default 0.3 */
+  /** Half-range of the central diffraction angle when the profile states it, degrees (added to the centre's range: both shift the spectrum). @default 0.5 */
   detectorAngleDeg: number;
-  /** Half-range of the detector tilt, degrees (the profile states no tilt, so it is a wide nuisance range). @default 10 */
+  /** Half-range of the detector tilt around the profile's stated tilt, degrees (without a stated tilt the band is set by priors.ts). @default 3 */
   tiltDeg: number;
 }
 
@@ -24,8 +24,10 @@ export interface AssignInput {
   pixelCount: number;
   /** Nominal driver wavelength, nm. */
   driverNm: number;
-  /** Tolerance on the driver wavelength, percent. @default 1 */
+  /** 1σ of the measured driver wavelength, percent (the measurement's spread, symmetric). @default 0.5 */
   driverTolerancePct?: number;
+  /** Largest ionisation blue shift of the effective driver below the measured one, percent. @default 1 */
+  blueShiftPct?: number;
   parity: Parity;
   /** Filter foils in the beam. @default [] */
   filters?: FilterSpec[];
@@ -89,9 +91,18 @@ export interface Hypothesis {
   missingHarmonics: number[];
 }
 
+/** One check the leading labelling must pass before it is called unique (verdict.ts). */
+export interface VerdictGate {
+  name: 'fit' | 'explained' | 'priors' | 'lines' | 'margin';
+  passed: boolean;
+  detail: string;
+}
+
 export interface AssignResult {
   status: 'unique' | 'ambiguous' | 'failed';
   message: string;
+  /** The gates of the verdict, in order (empty when the assignment failed before a labelling was found). */
+  gates: VerdictGate[];
   /** Distinct hypotheses, best first (at most 8). */
   hypotheses: Hypothesis[];
   best: Hypothesis | null;
