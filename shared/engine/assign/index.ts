@@ -189,10 +189,17 @@ function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
   };
 
   const knownPoints: ModelPoint[] = [];
+  // Peaks that are known lines: in the fit as fixed-wavelength points, kept out of the harmonic search.
+  const knownPeaks = new Map<number, string>();
   for (const k of input.knownLines ?? []) {
     if (!(Number.isFinite(k.wavelengthNm) && k.wavelengthNm > 0)) return 'A known line needs a positive wavelength in nm.';
     if (k.pixel !== undefined && Number.isFinite(k.pixel)) {
       knownPoints.push({ pixel: k.pixel, sigmaPx: Math.max(k.pixelSigma ?? 0.5, SIGMA_FLOOR_PX), scale: 0, fixedNm: k.wavelengthNm });
+      let nearest = -1;
+      searchPeaks.forEach((pk, i) => {
+        if (Math.abs(pk.pixel - (k.pixel as number)) <= Math.max(1.5, pk.fwhmPx) && (nearest < 0 || Math.abs(pk.pixel - (k.pixel as number)) < Math.abs(searchPeaks[nearest].pixel - (k.pixel as number)))) nearest = i;
+      });
+      if (nearest >= 0) knownPeaks.set(nearest, k.label ?? `known line ${k.wavelengthNm.toFixed(4)} nm`);
     }
   }
   const pins = new Map<number, number>();
@@ -223,6 +230,7 @@ function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
     angleKnown: centralAngleKnown,
     anchored: knownPoints.length > 0,
     knownPoints,
+    knownPeaks,
     transmission,
     pins,
     opaqueTransmission: opaqueTransmission(searchPeaks.reduce((m, p) => Math.max(m, p.snr), 0)),
@@ -317,7 +325,7 @@ function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8A
   lines1.harmonic.forEach((q, j) => partnerOnDetector.set(q, lines1.pixel[j]));
   const spurious = spuriousCost(ctx.model.pixelCount);
   for (let i = 0; i < n; i++) {
-    if (harmonic[i] > 0) continue;
+    if (harmonic[i] > 0 || ctx.knownPeaks.has(i)) continue;
     const pk = ctx.peaks[i];
     const j = nearestLine(lines2, pk.pixel);
     if (j < 0) continue;
@@ -459,7 +467,7 @@ function searchCandidates(ctx: SearchContext): Candidate[] {
   const kMax = ctx.parity === 'odd' ? 3 : 4;
   // A saturated line is among the brightest whatever its fitted SNR (its clipped core is down-weighted).
   const rank = (i: number): number => (ctx.peaks[i].saturated ? Number.POSITIVE_INFINITY : ctx.peaks[i].snr);
-  const bySnr = [...ctx.peaks.keys()].sort((a, b) => rank(b) - rank(a) || ctx.peaks[b].snr - ctx.peaks[a].snr);
+  const bySnr = [...ctx.peaks.keys()].filter((i) => !ctx.knownPeaks.has(i)).sort((a, b) => rank(b) - rank(a) || ctx.peaks[b].snr - ctx.peaks[a].snr);
   const strong = bySnr.slice(0, Math.min(8, n));
   const pairSet = new Set<string>();
   const pairs: [number, number][] = [];
@@ -734,6 +742,8 @@ function toHypothesis(ctx: SearchContext, c: Candidate, s2: number, bestScore: n
     };
     const blend = c.blends.get(i);
     if (blend) label.blend = blend;
+    const known = ctx.knownPeaks.get(i);
+    if (known !== undefined) label.knownLine = known;
     labels[original[i]] = label;
     if (c.harmonic[i] > 0 && c.order[i] === 1) {
       first = Math.min(first, c.harmonic[i]);
@@ -926,7 +936,7 @@ function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
     firstOrderCount: best.raw.firstOrderCount,
     margin: delta,
     uniqueMargin: margin,
-    blended: new Set(best.blends.keys()),
+    blended: new Set([...best.blends.keys(), ...ctx.knownPeaks.keys()]),
   });
   const gates = verdict.gates.map((g) => ({ ...g }));
   if (verdict.status === 'unique') {

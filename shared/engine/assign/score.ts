@@ -58,7 +58,9 @@ export function rawScore(ctx: SearchContext, harmonic: Int32Array, order: Int8Ar
   const firstOrder: { q: number; u: number; a: number }[] = [];
   const lambda0 = fit.parameters[P_DRIVER];
   for (let i = 0; i < harmonic.length; i++) {
-    if (harmonic[i] <= 0) unexplainedCount++;
+    if (harmonic[i] <= 0) {
+      if (!ctx.knownPeaks.has(i)) unexplainedCount++;
+    }
     else if (order[i] === 2) secondOrderCount++;
     else {
       firstOrderCount++;

@@ -55,6 +55,8 @@ export interface SearchContext {
   anchored: boolean;
   /** Known-wavelength points always in the fit. */
   knownPoints: ModelPoint[];
+  /** Peaks that are known lines (index → label): explained, never given a harmonic label. */
+  knownPeaks: Map<number, string>;
   /** Filter stack transmission at a photon energy. */
   transmission: (energyEv: number) => number;
   /** peak index → pinned harmonic (m = 1). */
@@ -191,7 +193,8 @@ export function freeParameters(ctx: SearchContext, count: number): number[] {
   // λ0 is free inside its blue-shift wall even without an anchor: otherwise the geometry alone has
   // to absorb the true λ0's offset from the middle of the tolerance, and a rival labelling would be
   // judged against the wrong scale.
-  if (count >= 3) free.push(P_DRIVER);
+  // With a known line the driver is what the anchor measures: free as soon as two points are in.
+  if (count >= 3 || (ctx.anchored && count >= 2)) free.push(P_DRIVER);
   return free;
 }
 
@@ -304,7 +307,7 @@ export function grow(ctx: SearchContext, seedHarmonic: Int32Array, start: ArrayL
     for (let i = 0; i < n; i++) if (harmonic[i] > 0) used.add(harmonic[i]);
     const best = new Map<number, { peak: number; rel: number }>();
     for (let i = 0; i < n; i++) {
-      if (harmonic[i] > 0) continue;
+      if (harmonic[i] > 0 || ctx.knownPeaks.has(i)) continue;
       const j = nearestLine(lines, ctx.peaks[i].pixel);
       if (j < 0) continue;
       const q = lines.harmonic[j];

@@ -32,6 +32,8 @@ export const XUV_PROFILE: InstrumentProfile = {
   wavelengthIncreasesWithPixel: true,
   detectorCenterPixel: 511.5,
   detectorAngleDeg: 76,
+  // The camera stands square to the central ray (the truth's tilt is drawn within ±1° of it).
+  detectorTiltDeg: 0,
   pixelCount: 1024,
 };
 
