@@ -1,6 +1,7 @@
 /**
  * Reference data and physics helpers against their published sources:
- * - edges: xraylib 4.0.0 EdgeEnergy (fixture tests/fixtures/reference/xray/edges.json);
+ * - edges: xraylib 4.0.0 EdgeEnergy (fixture tests/fixtures/reference/xray/edges.json), kept beside
+ *   the Henke steps the product uses (edge-energies.test.ts checks those against the tables);
  * - filters: Henke, Gullikson & Davis (1993) via periodictable 1.6.0 (fixture xray/filters.json;
  *   /work/shared/reference/README.md: Al 200 nm falls from 0.735 at 72 eV to 0.029 at 73 eV);
  * - hc: exact 2019-SI value (fixture constants.json, CODATA 2018);
@@ -39,25 +40,29 @@ const constants = fixture<{
   cutoffLaw: { workedExample: { Ip_eV: number; lambda_um: number; intensity_W_cm2: number; Up_eV_textbook_coefficient: number; Up_eV_from_constants: number; Ecut_eV_textbook: number; Ecut_eV_from_constants: number } };
 }>('constants.json');
 
-describe('absorption edges (xraylib 4.0.0 EdgeEnergy)', () => {
+describe('absorption edges (calibration-data/edges.json; xraylib 4.0.0 EdgeEnergy kept beside each)', () => {
   it('fixture names its source', () => {
     expect(edgesFile.source).toBe('xraylib 4.0.0 EdgeEnergy');
   });
-  it.each(['Al', 'Mg', 'Si', 'Zr', 'Sn', 'In', 'Ti'])('%s edges equal the fixture, sorted by energy', (symbol) => {
+  it.each(['Al', 'Mg', 'Si', 'Zr', 'Sn', 'In', 'Ti'])('%s edges keep every xraylib shell of the fixture beside them, sorted by energy', (symbol) => {
     const expected = edgesFile.elements.find((e) => e.symbol === symbol)!.edges;
     const got = absorptionEdges(symbol);
-    expect(got).toHaveLength(expected.length);
-    for (const e of expected) expect(got.find((g) => g.label === `${symbol} ${e.shell}`)?.energyEv).toBe(e.energyEv);
+    const kept = got.flatMap((g) => g.xraylib);
+    expect(kept).toHaveLength(expected.length);
+    for (const e of expected) expect(kept.find((k) => k.shell === e.shell)?.energyEv).toBe(e.energyEv);
     for (let i = 1; i < got.length; i++) expect(got[i].energyEv).toBeGreaterThanOrEqual(got[i - 1].energyEv);
   });
-  it('Al L3 and L2 sit at 72.7 and 73.2 eV in xraylib (Henke puts the step between 72 and 73 eV)', () => {
-    const al = absorptionEdges('al');
-    expect(al.find((e) => e.shell === 'L3')?.energyEv).toBe(72.7);
-    expect(al.find((e) => e.shell === 'L2')?.energyEv).toBe(73.2);
+  it('Al L2,3 is one Henke step at 72.7 eV (f2 steps at 72.6-72.8, README), with xraylib L3 72.7 and L2 73.2 beside it', () => {
+    const al = absorptionEdges('al').find((e) => e.shell === 'L2,3')!;
+    expect(al.energyEv).toBe(72.7);
+    expect(al.xraylib).toEqual([
+      { shell: 'L2', energyEv: 73.2 },
+      { shell: 'L3', energyEv: 72.7 },
+    ]);
   });
-  it('lists edges of several filters inside a range', () => {
+  it('lists the steps the filters show inside a range', () => {
     const edges = filterEdgeEnergiesInRange(['Al', 'Zr'], 60, 190);
-    expect(edges.map((e) => e.label)).toEqual(['Al L3', 'Al L2', 'Al L1', 'Zr M5', 'Zr M4']);
+    expect(edges.map((e) => e.label)).toEqual(['Al L2,3', 'Zr M5']);
   });
   it('refuses an unknown element by name', () => {
     expect(() => absorptionEdges('Xx')).toThrow(/No absorption edges tabulated for "Xx"/);

@@ -89,7 +89,7 @@ describe('generateScenarios', () => {
       const energies = Array.from(truth.wavelengthNmAtPixel, (nm) => HC_EV_NM / nm);
       const lo = Math.min(...energies);
       const hi = Math.max(...energies);
-      // xraylib edges and the Henke table's steepest drop differ by 1-2 eV (calibration-data/README.md).
+      // The edge list gives the Henke steps of the same tables the simulator cuts the comb with (calibration-data/README.md).
       const inside = absorptionEdges(material).filter((e) => e.energyEv > lo - 3 && e.energyEv < hi + 3);
       expect(inside.length, `${s.id} ${material}`).toBeGreaterThan(0);
       const edgeEv = inside[0].energyEv;
