@@ -5,6 +5,7 @@
  */
 import { assignOrders, unanchoredScaleSigma, type AssignResult, type FilterSpec, type Hypothesis } from './assign/index.ts';
 import { HC_EV_NM } from './constants.ts';
+import { FIT_FLOOR_PX } from './assign/verdict.ts';
 import { evaluateCalibration, fitGratingMap, fitPolynomialMap, type GratingParameter } from './dispersion/index.ts';
 import { EngineError } from './errors.ts';
 import { matchKnownLines, type KnownLine, type MatchedKnownLines } from './known-lines.ts';
@@ -122,11 +123,66 @@ function freeParameters(pointCount: number): GratingParameter[] {
   return order.slice(0, Math.max(1, Math.min(order.length, pointCount - 2)));
 }
 
+type GratingBounds = Partial<Record<GratingParameter, [number, number]>>;
+
+/**
+ * A few-line fit holds parameters the lines cannot determine; their uncertainty still moves the
+ * map. Propagate it: with θ_h ~ (value, σ_h²) from the assigner's priors and G = ∂θ̂_free/∂θ_h
+ * (one refit per held parameter, by finite difference), the joint covariance is
+ * [C_f + G Σ_h Gᵀ, G Σ_h; Σ_h Gᵀ, Σ_h] (linearised, common practice), stored over
+ * free ∪ held so that the band at every pixel includes it.
+ */
+function withHeldParameters(
+  points: CalibrationPoint[],
+  fit: ReturnType<typeof fitGratingMap>,
+  free: GratingParameter[],
+  bounds: GratingBounds,
+  priorSigma: AssignResult['priorSigma'],
+): NonNullable<Calibration['grating']> {
+  const grating = fit.grating;
+  const held = HELD_CANDIDATES.filter((name) => !free.includes(name) && (priorSigma[name] ?? 0) > 0);
+  if (held.length === 0) return grating;
+  const k = free.length;
+  const gradients: number[][] = [];
+  for (const name of held) {
+    const sigma = priorSigma[name] as number;
+    const h = 0.05 * sigma;
+    const start = { ...grating.geometry };
+    start[name] = grating.geometry[name] + h;
+    const moved = fitGratingMap(points, start, { restarts: 0, maxIterations: 200, free, bounds: { ...bounds, [name]: undefined } });
+    gradients.push(free.map((f, j) => (moved.grating.parameters[j] - grating.parameters[j]) / h));
+  }
+  const m = k + held.length;
+  const cov = Array.from({ length: m }, () => new Array<number>(m).fill(0));
+  for (let a = 0; a < k; a++) for (let b = 0; b < k; b++) cov[a][b] = grating.covariance[a][b];
+  held.forEach((name, hIndex) => {
+    const s2 = (priorSigma[name] as number) ** 2;
+    const g = gradients[hIndex];
+    for (let a = 0; a < k; a++) {
+      for (let b = 0; b < k; b++) cov[a][b] += g[a] * g[b] * s2;
+      cov[a][k + hIndex] = g[a] * s2;
+      cov[k + hIndex][a] = g[a] * s2;
+    }
+    cov[k + hIndex][k + hIndex] = s2;
+  });
+  return {
+    geometry: grating.geometry,
+    parameterNames: [...grating.parameterNames, ...held],
+    parameters: [...grating.parameters, ...held.map((name) => grating.geometry[name])],
+    covariance: cov,
+    heldParameterNames: held,
+  };
+}
+
+/** Parameters a few-line fit may hold (the centre pixel is never fitted: the angle absorbs a shift). */
+const HELD_CANDIDATES: GratingParameter[] = ['detectorAngleDeg', 'detectorDistanceMm', 'detectorTiltDeg', 'incidenceAngleDeg'];
+
 function fitMap(
   points: CalibrationPoint[],
   hypothesis: Hypothesis,
   pixelCount: number,
   model: CalibrateOptions['model'],
+  priorSigma: AssignResult['priorSigma'] = {},
 ): { calibration: Pick<Calibration, 'model' | 'polynomial' | 'grating' | 'residualRmsNm' | 'reducedChiSquare'>; residualsNm: number[]; looNm: number[]; notes: string[] } {
   const notes: string[] = [];
   if (model && typeof model === 'object') {
@@ -140,6 +196,12 @@ function fitMap(
   }
   const free = freeParameters(points.length);
   const g = hypothesis.geometry;
+  const bounds: GratingBounds = {
+    detectorAngleDeg: [g.detectorAngleDeg - 2, g.detectorAngleDeg + 2],
+    detectorDistanceMm: [g.detectorDistanceMm * 0.9, g.detectorDistanceMm * 1.1],
+    detectorTiltDeg: [g.detectorTiltDeg - 10, g.detectorTiltDeg + 10],
+    incidenceAngleDeg: [g.incidenceAngleDeg - 1, g.incidenceAngleDeg + 1],
+  };
   const fit = fitGratingMap(points, g, {
     // The start is the assigner's own least-squares geometry for these very points (searched from
     // several starts there), so extra restarts only repeat that search.
@@ -148,16 +210,15 @@ function fitMap(
     // of the one fit (MINPACK-style stopping), so the default iteration cap costs little.
     maxIterations: 200,
     free,
-    bounds: {
-      detectorAngleDeg: [g.detectorAngleDeg - 2, g.detectorAngleDeg + 2],
-      detectorDistanceMm: [g.detectorDistanceMm * 0.9, g.detectorDistanceMm * 1.1],
-      detectorTiltDeg: [g.detectorTiltDeg - 10, g.detectorTiltDeg + 10],
-      incidenceAngleDeg: [g.incidenceAngleDeg - 1, g.incidenceAngleDeg + 1],
-    },
+    bounds,
   });
   if (!fit.wellConditioned) notes.push(`The grating fit's free parameters (${free.join(', ')}) are strongly correlated; the map is sound, the individual parameters are not.`);
+  const grating = withHeldParameters(points, fit, free, bounds, priorSigma);
+  if (grating.heldParameterNames?.length) {
+    notes.push(`Too few lines to fit ${grating.heldParameterNames.join(', ')}: held at the assigner's values, their spread over the realignment range is carried into the band.`);
+  }
   return {
-    calibration: { model: 'grating', grating: fit.grating, residualRmsNm: fit.residualRmsNm, reducedChiSquare: fit.reducedChiSquare },
+    calibration: { model: 'grating', grating, residualRmsNm: fit.residualRmsNm, reducedChiSquare: fit.reducedChiSquare },
     residualsNm: fit.residualsNm,
     looNm: fit.leaveOneOutResidualsNm,
     notes,
@@ -179,7 +240,9 @@ function buildCalibration(
     if (label.harmonic === null || label.diffractionOrder === null) return;
     points.push({
       pixel: peaks[i].pixel,
-      pixelSigma: peaks[i].pixelSigma,
+      // The same centroid floor as the assigner's fit gate: bright lines claim 0.001 px while the
+      // detector and line shape hold them to about 0.02 px.
+      pixelSigma: Math.hypot(peaks[i].pixelSigma, FIT_FLOOR_PX),
       harmonic: label.harmonic,
       diffractionOrder: label.diffractionOrder,
       wavelengthNm: assignment.driverNm / label.harmonic,
@@ -188,7 +251,7 @@ function buildCalibration(
     });
   });
   if (points.length < 2) throw new EngineError('fit_failed', 'fewer than two labelled peaks: no map can be fitted');
-  const fitted = fitMap(points, hypothesis, pixelCount, options.model);
+  const fitted = fitMap(points, hypothesis, pixelCount, options.model, assignment.priorSigma);
   points.forEach((p, i) => {
     p.residualNm = fitted.residualsNm[i];
     p.leaveOneOutResidualNm = fitted.looNm[i];

@@ -162,10 +162,15 @@ export interface Calibration {
     /** How the degree was chosen, e.g. "AICc over degrees 1-4". */
     degreeCriterion: string;
   };
-  /** Physical map: the geometry at the fitted values; `parameterNames` say which entries of the geometry were fitted. */
+  /** Physical map: the geometry at the fitted values; `parameterNames` say which entries of the geometry the covariance covers (fitted ones, and held ones listed in `heldParameterNames`). */
   grating?: {
     geometry: GratingGeometry;
     parameterNames: string[];
+    /**
+     * Entries of `parameterNames` that were held, not fitted (too few lines): their prior spread
+     * over the realignment range is in `covariance`, so the band includes it.
+     */
+    heldParameterNames?: string[];
     parameters: number[];
     covariance: number[][];
   };

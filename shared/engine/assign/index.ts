@@ -69,7 +69,7 @@ import {
   type SearchPeak,
 } from './search.ts';
 import type { AssignInput, AssignResult, Hypothesis, PeakLabel } from './types.ts';
-import { decideVerdict } from './verdict.ts';
+import { decideVerdict, FIT_FLOOR_PX } from './verdict.ts';
 
 export type { AssignInput, AssignResult, Hypothesis, PeakLabel, RealignmentRanges, FilterSpec, VerdictGate } from './types.ts';
 
@@ -105,6 +105,7 @@ function failed(message: string, notes: string[] = []): AssignResult {
     status: 'failed',
     message,
     gates: [],
+    priorSigma: {},
     hypotheses: [],
     best: null,
     anchored: false,
@@ -414,9 +415,54 @@ function rematch(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, par
   return changed;
 }
 
+/**
+ * Weak first-order lines the grown map explains: an unlabelled peak on a predicted m = 1 line whose
+ * harmonic no peak holds, within 4σ of it (the peak's σ scaled by the fit's own reduced χ², the
+ * prediction's σ, and the centroid floor), joins the labelling. Grow's window is relative to the
+ * line spacing and its outlier test to the scatter; a faint line can miss both and still be a line.
+ */
+function labelWeakFirstOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, fit: ModelFit, dof: number): number {
+  const lines = predictLines(ctx, fit.parameters, 1);
+  if (lines.pixel.length === 0) return 0;
+  const s2 = Math.max(1, fit.chiSquarePosition / Math.max(dof, 1));
+  const used = new Set<number>();
+  for (let i = 0; i < harmonic.length; i++) if (harmonic[i] > 0 && order[i] === 1) used.add(harmonic[i]);
+  let added = 0;
+  for (let i = 0; i < harmonic.length; i++) {
+    if (harmonic[i] > 0 || ctx.knownPeaks.has(i)) continue;
+    const pk = ctx.peaks[i];
+    const j = nearestLine(lines, pk.pixel);
+    if (j < 0 || used.has(lines.harmonic[j])) continue;
+    const q = lines.harmonic[j];
+    const sp = predictionSigma(ctx, fit, fit.parameters[P_DRIVER] / q, s2);
+    const sigma = Math.sqrt(s2 * pk.sigmaPx * pk.sigmaPx + sp * sp + FIT_FLOOR_PX * FIT_FLOOR_PX);
+    const r = pk.pixel - lines.pixel[j];
+    if (!(Math.abs(r) < 4 * sigma && Math.abs(r) < 0.1 * localSpacing(lines, j))) continue;
+    harmonic[i] = q;
+    order[i] = 1;
+    used.add(q);
+    added++;
+  }
+  return added;
+}
+
 function finish(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>): Candidate {
   let state = refit(ctx, harmonic, order, start, true);
   if (rematch(ctx, harmonic, order, state.fit.parameters)) state = refit(ctx, harmonic, order, state.fit.parameters, true);
+  {
+    const hBefore = Int32Array.from(harmonic);
+    const mBefore = Int8Array.from(order);
+    const dof1 = Math.max(1, state.points.length - state.fit.freeIndices.length);
+    if (labelWeakFirstOrder(ctx, harmonic, order, state.fit, dof1) > 0) {
+      const withWeak = refit(ctx, harmonic, order, state.fit.parameters, true);
+      // Keep them unless they spoil the fit (a score that gets worse means one was no line).
+      if (totalScore(rawScore(ctx, harmonic, order, withWeak.fit, withWeak.points), 1) <= totalScore(rawScore(ctx, hBefore, mBefore, state.fit, state.points), 1)) state = withWeak;
+      else {
+        harmonic.set(hBefore);
+        order.set(mBefore);
+      }
+    }
+  }
   const dof = Math.max(1, state.points.length - state.fit.freeIndices.length);
   const before = order.filter((m) => m === 2).length;
   const h0 = Int32Array.from(harmonic);
@@ -915,7 +961,13 @@ function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
   const blendCount = best.blends.size;
   if (blendCount > 0) notes.push(`${blendCount} peak(s) may also hold the m = 2 line of twice their harmonic (parity 'all': the same pixel); their labels give the m = 1 reading, and position cannot tell them apart.`);
 
+  const priorSigma: AssignResult['priorSigma'] = {};
+  for (const j of [P_CENTER, P_ANGLE, P_INCIDENCE, P_DISTANCE, P_TILT]) {
+    const w = ctx.model.walls[j];
+    if (w) priorSigma[PARAMETER_NAMES[j] as keyof AssignResult['priorSigma']] = (w.hi - w.lo) / Math.sqrt(12);
+  }
   const base = {
+    priorSigma,
     hypotheses,
     best: bestHyp,
     anchored: ctx.anchored,

@@ -113,6 +113,12 @@ export interface AssignResult {
   driverSigmaNm: number;
   /** Relative 1σ of the whole wavelength scale (see index.ts for how it is chosen). */
   scaleSigmaRelative: number;
+  /**
+   * 1σ spread of each geometry parameter under its prior (realignment range or stated band, as a
+   * uniform distribution: width/√12), by geometry name; for fits that must hold a parameter the
+   * data cannot determine and still state an honest band.
+   */
+  priorSigma: Partial<Record<'detectorCenterPixel' | 'detectorAngleDeg' | 'incidenceAngleDeg' | 'detectorDistanceMm' | 'detectorTiltDeg', number>>;
   /** Reduced χ² of the best fit (≥ 1 is used to scale the others). */
   reducedChiSquare: number;
   /** Assumptions and notes, in plain language. */
