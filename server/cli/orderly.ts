@@ -7,14 +7,21 @@ import { parseArgs, type ParseArgsConfig } from 'node:util';
 type ParseArgsOptionsConfig = NonNullable<ParseArgsConfig['options']>;
 import { readFile, readdir, stat } from 'node:fs/promises';
 import path from 'node:path';
-import { runCalibrate, runApply, type CliFailure } from './commands.ts';
+import type { KnownLine } from '../../shared/engine/known-lines.ts';
+import { FlagValueError, runCalibrate, runApply, type CliFailure } from './commands.ts';
 import { formatApplyTable, formatCalibrateTable } from './tables.ts';
 
 const USAGE = `usage:
   orderly calibrate FRAME --profile PROFILE.json --driver-nm N [--driver-tolerance-pct P]
       [--parity odd|all] [--filters Al,Zr] [--dark DARK] [--page K] [--pin PIXEL=Q ...]
-      [--signal START:END] [--background START:END ...] [--model auto|grating|poly:N] [--json]
-  orderly apply FRAME... --calibration CAL.json [--dark DARK] [--page K] [--json]`;
+      [--line PIXEL=ENERGY_EV[@LABEL] ...] [--signal START:END] [--background START:END ...]
+      [--model auto|grating|poly:N] [--json]
+  orderly apply FRAME... --calibration CAL.json [--dark DARK] [--page K] [--json]
+
+  --page K    page of a multi-page frame, counted from 0; a one-page DARK is subtracted from
+              every page, a DARK stack with as many pages as FRAME page by page
+  --line      the peak nearest PIXEL has first-order photon energy ENERGY_EV (a line of known
+              energy, or a harmonic measured elsewhere): an absolute anchor of the scale`;
 
 class UsageError extends Error {}
 
@@ -34,7 +41,7 @@ async function main(argv: string[]): Promise<number> {
     console.error(`orderly: ${message}`);
     if (error instanceof UsageError) console.error(USAGE);
     if (json) console.log(JSON.stringify({ status: 'failed', message }));
-    return error instanceof UsageError ? 2 : 1;
+    return error instanceof UsageError || error instanceof FlagValueError ? 2 : 1;
   }
 }
 
@@ -55,11 +62,32 @@ function parseBand(text: string, flag: string): { start: number; end: number } {
   return { start, end };
 }
 
+const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
+
+/** `--line PIXEL=ENERGY_EV`, optionally `@LABEL`: a line of known first-order photon energy. */
+function parseKnownLine(text: string): KnownLine {
+  const at = text.indexOf('@');
+  const [value, label] = at < 0 ? [text, undefined] : [text.slice(0, at), text.slice(at + 1).trim()];
+  const parts = value.split('=');
+  if (parts.length !== 2) throw new UsageError(`--line expects PIXEL=ENERGY_EV (e.g. 812.4=72.7, or 812.4=72.7@Al-edge), got '${text}'`);
+  const [pixelText, energyText] = parts.map((p) => p.trim());
+  if (!DECIMAL.test(pixelText)) throw new UsageError(`--line ${text}: PIXEL must be a number, got '${pixelText}'`);
+  if (!DECIMAL.test(energyText) || !(Number(energyText) > 0)) throw new UsageError(`--line ${text}: ENERGY_EV must be a positive number of eV, got '${energyText}'`);
+  if (label === '') throw new UsageError(`--line ${text}: the label after @ is empty`);
+  return { pixel: Number(pixelText), energyEv: Number(energyText), ...(label ? { label } : {}) };
+}
+
 function parseNumber(text: string | undefined, flag: string): number | undefined {
   if (text === undefined) return undefined;
   const value = Number(text);
   if (!Number.isFinite(value)) throw new UsageError(`${flag} expects a number, got '${text}'`);
   return value;
+}
+
+function parsePage(text: string | undefined): number | undefined {
+  const page = parseNumber(text, '--page');
+  if (page !== undefined && !(Number.isInteger(page) && page >= 0)) throw new UsageError(`--page expects a page number counted from 0, got '${text}'`);
+  return page;
 }
 
 async function readJsonFile(file: string, what: string): Promise<unknown> {
@@ -94,6 +122,7 @@ async function calibrateCommand(args: string[], json: boolean): Promise<number> 
     dark: { type: 'string' },
     page: { type: 'string' },
     pin: { type: 'string', multiple: true },
+    line: { type: 'string', multiple: true },
     signal: { type: 'string' },
     background: { type: 'string', multiple: true },
     model: { type: 'string' },
@@ -110,19 +139,22 @@ async function calibrateCommand(args: string[], json: boolean): Promise<number> 
     if (!match) throw new UsageError(`--pin expects PIXEL=Q (e.g. 812.4=23), got '${text}'`);
     return { pixel: Number(match[1]), harmonic: Number(match[2]) };
   });
+  const knownLines = ((values.line as string[] | undefined) ?? []).map(parseKnownLine);
   const model = (values.model as string | undefined) ?? 'auto';
   if (!/^(auto|grating|poly:\d+)$/.test(model)) throw new UsageError(`--model must be auto, grating or poly:N, got '${model}'`);
 
   const result = await runCalibrate({
     frameBytes: await readBytes(positionals[0], 'frame'),
     darkBytes: typeof values.dark === 'string' ? await readBytes(values.dark, 'dark frame') : undefined,
-    page: parseNumber(values.page as string | undefined, '--page'),
+    names: { frame: positionals[0], dark: typeof values.dark === 'string' ? values.dark : undefined },
+    page: parsePage(values.page as string | undefined),
     profile: await readJsonFile(values.profile, 'profile'),
     driverNm,
     driverTolerancePct: parseNumber(values['driver-tolerance-pct'] as string | undefined, '--driver-tolerance-pct'),
     parity,
     filters: typeof values.filters === 'string' ? values.filters.split(',').map((s: string) => s.trim()).filter(Boolean) : [],
     pins,
+    knownLines,
     signal: typeof values.signal === 'string' ? parseBand(values.signal, '--signal') : undefined,
     background: ((values.background as string[] | undefined) ?? []).map((b) => parseBand(b, '--background')),
     model,
@@ -162,14 +194,14 @@ async function applyCommand(args: string[], json: boolean): Promise<number> {
   if (typeof values.calibration !== 'string') throw new UsageError('--calibration CAL.json is required');
   const calibrationJson = await readJsonFile(values.calibration, 'calibration');
   const darkBytes = typeof values.dark === 'string' ? await readBytes(values.dark, 'dark frame') : undefined;
-  const page = parseNumber(values.page as string | undefined, '--page');
+  const page = parsePage(values.page as string | undefined);
   const frames = await expandFrames(positionals);
   if (frames.length === 0) throw new Error('no frame files found in the given folder');
   let failures = 0;
   for (const frame of frames) {
     let outcome: Awaited<ReturnType<typeof runApply>> | CliFailure;
     try {
-      outcome = await runApply({ frameBytes: await readBytes(frame, 'frame'), darkBytes, page, calibrationJson });
+      outcome = await runApply({ frameBytes: await readBytes(frame, 'frame'), darkBytes, names: { dark: values.dark as string | undefined }, page, calibrationJson });
     } catch (error) {
       outcome = { status: 'failed', message: error instanceof Error ? error.message : String(error) };
     }

@@ -1,10 +1,12 @@
 /** Short readable tables for the CLI without `--json`. */
+import { describeAbsoluteScale } from '../../shared/engine/scale-note.ts';
+import type { Calibration } from '../../shared/engine/types.ts';
 
 interface CalibrateLike {
   status: string;
   message: string;
   peaks: { pixel: number; pixelSigma: number; harmonic: number | null; diffractionOrder: number; wavelengthNm: number | null; energyEv: number | null }[];
-  calibration: { model: string; driverNm: number; driverSigmaNm: number; residualRmsNm: number; absoluteScale: string } | null;
+  calibration: Calibration | null;
 }
 
 interface ApplyLike {
@@ -30,6 +32,7 @@ export function formatCalibrateTable(result: CalibrateLike): string {
     const c = result.calibration;
     lines.push(
       `model: ${c.model}; driver ${fixed(c.driverNm, 3)} ± ${fixed(c.driverSigmaNm, 3)} nm; rms residual ${fixed(c.residualRmsNm, 5)} nm; absolute scale: ${c.absoluteScale}`,
+      describeAbsoluteScale(c),
     );
   }
   lines.push(

@@ -23,7 +23,7 @@ import type { Calibration } from '../../../shared/engine/types.ts';
 
 const NAMEPLATE_ERROR = 0.008;
 
-const [base] = generateScenarios(1, 2026, { classes: ['gi-odd-clean'], sizes: [[1024, 256]], spectralAxis: 'x', bitDepth: 16 });
+const [base] = generateScenarios(1, 8, { classes: ['gi-odd-clean'], sizes: [[1024, 256]], spectralAxis: 'x', bitDepth: 16 });
 const nominalNm = base.driver.nominalNm;
 const scenario = { ...base, driver: { ...base.driver, effectiveNm: nominalNm * (1 + NAMEPLATE_ERROR) } };
 const { frame, truth } = simulateFrame(scenario, 11);
@@ -86,7 +86,6 @@ describe('calibrateFrame with a known line', () => {
     const peak = result.peaks.find((p) => Math.abs(p.pixel - line.pixel) < 1)!;
     expect(anchor.pixel).toBe(peak.pixel);
     expect(anchor.pixelSigma).toBe(peak.pixelSigma);
-    expect(peak.harmonic).toBe(line.harmonic);
 
     // What the anchor bought: the driver prior alone leaves ~1 %; the line leaves ~1e-6.
     expect(cal.unanchoredScaleSigmaRelative).toBeCloseTo(plain.calibration!.scaleSigmaRelative, 12);
@@ -99,6 +98,8 @@ describe('calibrateFrame with a known line', () => {
     expect(maxRelative).toBeLessThan(10 * level);
     expect(maxRelative).toBeLessThan(mapErrors(plain.calibration!).maxRelative / 1000);
     expect(maxZ).toBeLessThan(2);
+    // A harmonic measured elsewhere is still that harmonic: its peak keeps its order label.
+    expect(peak.harmonic).toBe(line.harmonic);
   });
 
   it('a pin fixes an order, not the scale', () => {
