@@ -6,7 +6,8 @@
 import { HC_EV_NM } from './constants.ts';
 import { calibrationWavelengthToPixel, evaluateCalibrationAxes } from './dispersion/evaluate.ts';
 import { EngineError } from './errors.ts';
-import { filterTransmission, parseFilterSpec } from './references.ts';
+import { isTabulatedEnergy, stackTransmission } from './filters/transmission.ts';
+import { parseFilterSpec } from './references.ts';
 import type { Calibration, Lineout, Peak } from './types.ts';
 
 export interface ApplyOptions {
@@ -45,6 +46,13 @@ export interface AppliedOrder {
   peakIndex: number | null;
   /** Filter transmission at this order's photon energy when the correction was applied. */
   filterTransmission?: number;
+  /**
+   * Higher diffraction orders of other harmonics that land on exactly this pixel (m·λ is the same):
+   * m = 3 of harmonic 3q on m = 1 of q, and for parity 'all' m = 2 of 2q. Their light is in this
+   * order's yield; position cannot separate it. Listed unless the filters block that harmonic or
+   * its own first-order line should be on the detector and is not seen.
+   */
+  sharedWith?: { harmonic: number; diffractionOrder: number }[];
 }
 
 export interface AppliedSpectrum {
@@ -187,17 +195,47 @@ function dropImplausibleHigherOrders(predictions: Prediction[], matches: Map<num
     : { reason: `${withheld} peak(s) on predicted higher-order positions are brighter than every first-order line and are left unlabelled.` };
 }
 
-/** Product transmission of the filters at one photon energy; NaN outside the tables. */
+/** Product transmission of the filters at one photon energy (filters/transmission.ts: end values held outside the tables); NaN for no energy. */
 function transmissionAt(filters: Array<{ material: string; thicknessNm: number }>, energyEv: number): number {
-  let t = 1;
-  for (const f of filters) t *= filterTransmission(f.material, energyEv, f.thicknessNm);
-  return t;
+  return stackTransmission(filters, energyEv);
 }
 
 /**
  * Calibrated spectrum of `lineout` under `cal`, with the detected `peaks` labelled by harmonic
  * and diffraction order. Never mutates its inputs.
  */
+/**
+ * Yields that hold light of other harmonics in higher diffraction orders at the same pixel (see
+ * AppliedOrder.sharedWith). Grating equation: m·λ equal ⇒ same angle (common practice).
+ */
+function markSharedPixels(orders: AppliedOrder[], parity: 'odd' | 'all', driverNm: number, filters: ReturnType<typeof parseFilterSpec>[], notes: string[]): void {
+  const firstOrder = new Map<number, AppliedOrder>();
+  for (const x of orders) if (x.diffractionOrder === 1) firstOrder.set(x.harmonic, x);
+  const marked: string[] = [];
+  for (const x of orders) {
+    if (x.diffractionOrder !== 1) continue;
+    const shared: { harmonic: number; diffractionOrder: number }[] = [];
+    for (const m of parity === 'all' ? [2, 3] : [3]) {
+      const q = m * x.harmonic;
+      // Its own first-order line on the detector and not seen: that harmonic is not there.
+      const own = firstOrder.get(q);
+      if (own && !own.detected) continue;
+      if (filters.length > 0) {
+        const t = transmissionAt(filters, (q * HC_EV_NM) / driverNm);
+        if (Number.isFinite(t) && t < 1e-3) continue;
+      }
+      shared.push({ harmonic: q, diffractionOrder: m });
+    }
+    if (shared.length > 0) {
+      x.sharedWith = shared;
+      marked.push(`${x.harmonic} (${shared.map((h) => `m = ${h.diffractionOrder} of ${h.harmonic}`).join(', ')})`);
+    }
+  }
+  if (marked.length > 0) {
+    notes.push(`Higher diffraction orders land on the same pixels as first-order lines, so these yields may include their light: q = ${marked.slice(0, 8).join('; ')}${marked.length > 8 ? `; and ${marked.length - 8} more` : ''}.`);
+  }
+}
+
 export function applyCalibration(lineout: Lineout, peaks: readonly Peak[], cal: Calibration, options?: ApplyOptions): AppliedSpectrum {
   const o = resolveOptions(options);
   const n = lineout.counts.length;
@@ -232,20 +270,23 @@ export function applyCalibration(lineout: Lineout, peaks: readonly Peak[], cal: 
     transmission = new Float64Array(n);
     let clipped = 0;
     let outside = 0;
+    let unmapped = 0;
     for (let i = 0; i < n; i++) {
       const t = transmissionAt(filters, energyEv[i]);
       transmission[i] = t;
       if (!Number.isFinite(t)) {
-        outside++;
+        unmapped++;
         continue;
       }
+      if (filters.length > 0 && !isTabulatedEnergy(energyEv[i])) outside++;
       if (t < o.minTransmission) clipped++;
       const divisor = Math.max(t, o.minTransmission);
       intensity[i] /= divisor;
       intensitySigma[i] /= divisor;
     }
     if (clipped > 0) notes.push(`Filter transmission below ${o.minTransmission} at ${clipped} pixels: the correction there is clipped at ×${1 / o.minTransmission}, so those intensities are lower bounds.`);
-    if (outside > 0) notes.push(`${outside} pixels lie outside the filter tables (15-300 eV) and are not corrected.`);
+    if (outside > 0) notes.push(`${outside} pixels lie outside the filter tables (15-300 eV): their correction holds the nearest tabulated transmission, so it is indicative only there.`);
+    if (unmapped > 0) notes.push(`${unmapped} pixels have no photon energy under this calibration and are not corrected.`);
     if (filters.length > 0) notes.push('Per-pixel correction uses the first-order photon energy; second-order light at those pixels is corrected with the wrong transmission.');
   }
   for (let i = 0; i < n; i++) {
@@ -314,6 +355,7 @@ export function applyCalibration(lineout: Lineout, peaks: readonly Peak[], cal: 
       orders.push(order);
     });
     orders.sort((x, y) => x.diffractionOrder - y.diffractionOrder || x.harmonic - y.harmonic);
+    markSharedPixels(orders, o.parity ?? cal.parity, cal.driverNm, cal.filters.map(parseFilterSpec), notes);
   }
   const unlabelled = peaks.length - orders.filter((x) => x.detected).length;
   if (unlabelled > 0) notes.push(`${unlabelled} detected peak(s) match no predicted harmonic.`);

@@ -89,3 +89,27 @@ describe('order labels of applied calibrations', () => {
     }
   });
 });
+
+describe('light of higher diffraction orders on first-order pixels', () => {
+  it('says which first-order yields may hold m = 3 of harmonic 3q (odd comb), and not where harmonic 3q is on the detector and absent', () => {
+    // Grating equation mλ = d(sin α − sin β): m = 3 of λ0/(3q) leaves at the angle of m = 1 of λ0/q
+    // (common practice); for an odd comb 3q is odd whenever q is.
+    const s = scenario({ filters: [] });
+    const calibrated = calibrateFrame(simulateFrame(s, 5).frame, { profile, driverNm: 800, driverTolerancePct: 0.5, parity: 'odd' });
+    expect(calibrated.status).toBe('unique');
+    const { spectrum } = applyTo(s, 6, calibrated.calibration!);
+    const firstOrder = spectrum.orders.filter((o) => o.diffractionOrder === 1);
+    const byHarmonic = new Map(firstOrder.map((o) => [o.harmonic, o]));
+    let shared = 0;
+    for (const o of firstOrder) {
+      const own = byHarmonic.get(3 * o.harmonic);
+      if (own && !own.detected) expect(o.sharedWith ?? []).toEqual([]);
+      else {
+        expect(o.sharedWith).toEqual([{ harmonic: 3 * o.harmonic, diffractionOrder: 3 }]);
+        shared++;
+      }
+    }
+    expect(shared).toBeGreaterThan(0);
+    expect(spectrum.notes.join(' ')).toMatch(/m = 3 of/);
+  });
+});
