@@ -124,30 +124,6 @@ export function filterTable(material: string): FilterTable {
 }
 
 /**
- * Transmission of a free-standing foil at `energyEv`: linear interpolation of ln T between the
- * tabulated 1 eV steps, then Beer–Lambert rescaling from the tabulated thickness t0:
- * T(t) = T(t0)^(t/t0). NaN outside the table's 15-300 eV.
- */
-export function filterTransmission(material: string, energyEv: number, thicknessNm?: number): number {
-  const t = filterTable(material);
-  const thickness = thicknessNm ?? t.thicknessNm;
-  if (!(thickness >= 0)) throw new EngineError('invalid_input', `Filter thickness must be ≥ 0 nm, got ${thicknessNm}.`);
-  const e = t.energyEv;
-  if (!(energyEv >= e[0] && energyEv <= e[e.length - 1])) return Number.NaN;
-  let lo = 0;
-  let hi = e.length - 1;
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (e[mid] <= energyEv) lo = mid;
-    else hi = mid;
-  }
-  const f = e[hi] === e[lo] ? 0 : (energyEv - e[lo]) / (e[hi] - e[lo]);
-  const ln = (x: number) => Math.log(Math.max(x, 1e-300));
-  const logT = ln(t.transmission[lo]) + f * (ln(t.transmission[hi]) - ln(t.transmission[lo]));
-  return Math.exp(logT * (thickness / t.thicknessNm));
-}
-
-/**
  * A filter as written in a calibration's `filters` list: "Al", "Al 200nm", "Al:150", "Zr 0.2um".
  * Thickness defaults to the tabulated foil's.
  */

@@ -1,24 +1,16 @@
 /**
- * Filter transmission for the simulator, from the project's reference module
- * (shared/engine/references.ts over calibration-data/filters.json: Henke-based free-standing
- * foils, 15-300 eV). Outside the table's range the nearest end value is held, so a continuum that
- * runs past 300 eV or below 15 eV stays finite (indicative only there, as the table itself says
- * below ~30 eV).
+ * Filter transmission for the simulator: the engine's one transmission
+ * (../filters/transmission.ts over calibration-data/filters.json: Henke-based free-standing
+ * foils, 15-300 eV, the nearest end value held outside, sharp steps at the tabulated edges).
  */
-import { filterTransmission } from '../references.ts';
+import { foilTransmission } from '../filters/transmission.ts';
 import type { SimFilter } from './types.ts';
 
-/** Transmission of one foil at one photon energy (the signature of references.ts' filterTransmission). */
+/** Transmission of one foil at one photon energy (the signature of filters/transmission.ts' foilTransmission). */
 export type FilterTransmissionFn = (material: string, energyEv: number, thicknessNm?: number) => number;
 
-/** Energy range of calibration-data/filters.json, eV. */
-const TABLE_RANGE_EV: [number, number] = [15, 300];
-
-/** references.ts' filterTransmission with the table's end values held outside 15-300 eV. */
-export function referenceFilterTransmission(material: string, energyEv: number, thicknessNm?: number): number {
-  const clamped = Math.min(TABLE_RANGE_EV[1], Math.max(TABLE_RANGE_EV[0], energyEv));
-  return filterTransmission(material, clamped, thicknessNm);
-}
+/** The engine's foil transmission, the simulator's default source. */
+export const referenceFilterTransmission: FilterTransmissionFn = foilTransmission;
 
 /** Product of the transmissions of a stack of foils at `energyEv`. */
 export function filterStackTransmission(

@@ -10,7 +10,7 @@ import { applyCalibration } from '../../../shared/engine/apply.ts';
 import { HC_EV_NM } from '../../../shared/engine/constants.ts';
 import { fitPolynomialMap } from '../../../shared/engine/dispersion/polynomial-map.ts';
 import { pixelToWavelengthNm, wavelengthToPixel } from '../../../shared/engine/grating.ts';
-import { filterTransmission } from '../../../shared/engine/references.ts';
+import { foilTransmission as filterTransmission } from '../../../shared/engine/filters/transmission.ts';
 import type { Calibration, GratingGeometry, Lineout, Peak } from '../../../shared/engine/types.ts';
 
 const N = 2048;
@@ -164,6 +164,18 @@ describe('applyCalibration', () => {
     expect(out.notes.some((n) => /^Filter transmission below 0.001 at \d+ pixels: the correction there is clipped at ×1000/.test(n))).toBe(true);
     const p = out.filterTransmission!.findIndex((t) => t < 1e-3);
     expect(out.intensity[p]).toBeCloseTo(lineout.counts[p] * 1000, 6);
+  });
+
+  it('outside the 15-300 eV tables the correction holds the nearest tabulated value and says so (filters/transmission.ts)', () => {
+    // The same invented spectrometer turned to β = 60°, where it sees 9-13 eV: below every table.
+    const low: Calibration = { ...cal, filters: ['Al'], grating: { geometry: { ...geometry, detectorAngleDeg: 60 }, parameterNames: ['detectorAngleDeg'], parameters: [60], covariance: [[1e-8]] } };
+    const out = applyCalibration(lineout, [], low, { filterCorrection: true });
+    expect(Math.max(...out.energyEv)).toBeLessThan(15);
+    expect(out.notes).toContain(`${N} pixels lie outside the filter tables (15-300 eV): their correction holds the nearest tabulated transmission, so it is indicative only there.`);
+    for (const p of [0, 1000, 2047]) {
+      expect(out.filterTransmission![p]).toBe(filterTransmission('Al', 15));
+      expect(out.intensity[p] * Math.max(out.filterTransmission![p], 1e-3)).toBeCloseTo(lineout.counts[p], 9);
+    }
   });
 
   it('refuses a lineout of the wrong length', () => {

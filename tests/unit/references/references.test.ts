@@ -2,8 +2,8 @@
  * Reference data and physics helpers against their published sources:
  * - edges: xraylib 4.0.0 EdgeEnergy (fixture tests/fixtures/reference/xray/edges.json), kept beside
  *   the Henke steps the product uses (edge-energies.test.ts checks those against the tables);
- * - filters: Henke, Gullikson & Davis (1993) via periodictable 1.6.0 (fixture xray/filters.json;
- *   /work/shared/reference/README.md: Al 200 nm falls from 0.735 at 72 eV to 0.029 at 73 eV);
+ * - filters: Henke, Gullikson & Davis (1993) via periodictable 1.6.0 (fixture xray/filters.json):
+ *   the materials and spec parsing (the transmission is tests/unit/filters/transmission.test.ts);
  * - hc: exact 2019-SI value (fixture constants.json, CODATA 2018);
  * - cutoff law: constants.json worked example (Ar, 800 nm, 1.5e14 W/cm²).
  */
@@ -15,8 +15,6 @@ import {
   absorptionEdges,
   driverPresets,
   filterEdgeEnergiesInRange,
-  filterReferenceThicknessNm,
-  filterTransmission,
   knownFilterMaterials,
   parseFilterSpec,
 } from '../../../shared/engine/references.ts';
@@ -69,44 +67,7 @@ describe('absorption edges (calibration-data/edges.json; xraylib 4.0.0 EdgeEnerg
   });
 });
 
-describe('filter transmission (Henke-based tables)', () => {
-  it('Al 200 nm: 0.735 at 72 eV, 0.029 at 73 eV', () => {
-    expect(filterTransmission('Al', 72)).toBeCloseTo(0.735, 3);
-    expect(filterTransmission('Al', 73)).toBeCloseTo(0.029, 3);
-  });
-  it('reproduces every tabulated point of every foil', () => {
-    for (const f of filtersFile.filters) {
-      f.energyEv.forEach((e, i) => {
-        const t = filterTransmission(f.material, e);
-        expect(Math.abs(t - f.transmission[i]) / f.transmission[i]).toBeLessThan(1e-9);
-      });
-    }
-  });
-  it('interpolates ln T linearly between table points', () => {
-    const f = filtersFile.filters.find((x) => x.material === 'Zr')!;
-    const i = f.energyEv.indexOf(100);
-    const expected = Math.sqrt(f.transmission[i] * f.transmission[i + 1]);
-    expect(filterTransmission('Zr', 100.5)).toBeCloseTo(expected, 12);
-  });
-  it('Beer–Lambert: twice the thickness squares T; thickness rescaling is self-consistent', () => {
-    for (const material of knownFilterMaterials()) {
-      const t0 = filterReferenceThicknessNm(material);
-      for (const e of [30, 60.5, 95, 150, 250]) {
-        const t = filterTransmission(material, e);
-        expect(filterTransmission(material, e, 2 * t0)).toBeCloseTo(t * t, 12);
-        // T(a)·T(b) = T(a + b) for any a, b.
-        const a = filterTransmission(material, e, 70);
-        const b = filterTransmission(material, e, 45);
-        expect(Math.abs(a * b - filterTransmission(material, e, 115)) / (a * b)).toBeLessThan(1e-12);
-        expect(filterTransmission(material, e, 0)).toBe(1);
-      }
-    }
-  });
-  it('is NaN outside the 15-300 eV tables and refuses unknown materials', () => {
-    expect(filterTransmission('Al', 10)).toBeNaN();
-    expect(filterTransmission('Al', 301)).toBeNaN();
-    expect(() => filterTransmission('Unobtainium', 50)).toThrow(/No transmission table/);
-  });
+describe('filter tables and specs (the transmission itself: tests/unit/filters/transmission.test.ts)', () => {
   it('knows the seven foils of the table', () => {
     expect(knownFilterMaterials().sort()).toEqual(filtersFile.filters.map((f) => f.material).sort());
   });
