@@ -13,6 +13,7 @@ export interface ResolvedScenario extends SimScenario {
   missingRelativeStrength: number;
   filters: SimFilter[];
   secondOrderRelativeStrength: number;
+  thirdOrderRelativeStrength: number;
   maxDiffractionOrder: number;
   divergenceExponent: number;
   lineShape: LineShape;
@@ -76,6 +77,7 @@ export function resolveScenario(scenario: SimScenario): ResolvedScenario {
     missingRelativeStrength: s.missingRelativeStrength ?? 0.01,
     filters: s.filters ?? [],
     secondOrderRelativeStrength: s.secondOrderRelativeStrength ?? 0.05,
+    thirdOrderRelativeStrength: s.thirdOrderRelativeStrength ?? (s.secondOrderRelativeStrength ?? 0.05) ** 2,
     maxDiffractionOrder: s.maxDiffractionOrder ?? 2,
     divergenceExponent: s.divergenceExponent ?? 0.5,
     lineShape: s.lineShape ?? { tiltPxPerPx: 0, curvaturePxPerPx2: 0 },
@@ -95,6 +97,7 @@ export function resolveScenario(scenario: SimScenario): ResolvedScenario {
   };
   finite('evenRelativeStrength', resolved.evenRelativeStrength, 0);
   finite('secondOrderRelativeStrength', resolved.secondOrderRelativeStrength, 0);
+  finite('thirdOrderRelativeStrength', resolved.thirdOrderRelativeStrength, 0);
   if (!Number.isInteger(resolved.maxDiffractionOrder) || resolved.maxDiffractionOrder < 1 || resolved.maxDiffractionOrder > 5) fail('maxDiffractionOrder', 'must be an integer from 1 to 5');
   finite('readNoiseCounts', resolved.readNoiseCounts, 0);
   finite('gainCountsPerPhoton', resolved.gainCountsPerPhoton, 1e-6);
@@ -102,5 +105,8 @@ export function resolveScenario(scenario: SimScenario): ResolvedScenario {
   finite('rollOffOrders', resolved.rollOffOrders, 1e-3);
   finite('jitterRelative', resolved.jitterRelative, 0, 2);
   for (const f of resolved.filters) finite(`filters[${f.material}].thicknessNm`, f.thicknessNm, 0);
+  resolved.spuriousPeaks.forEach((p, i) => {
+    if (p.spatialFwhmPx !== undefined) finite(`spuriousPeaks[${i}].spatialFwhmPx`, p.spatialFwhmPx, 0.05, 1e5);
+  });
   return resolved;
 }

@@ -68,6 +68,12 @@ function envelopePhotons(s: ResolvedScenario, q: number): number {
   return value * (s.harmonicWeights?.[q] ?? 1);
 }
 
+/** Photons of order m relative to m = 1: secondOrderRelativeStrength^(m − 1), with m = 3 set on its own when given. */
+function diffractionOrderWeight(s: ResolvedScenario, m: number): number {
+  if (m === 3) return s.thirdOrderRelativeStrength;
+  return Math.pow(s.secondOrderRelativeStrength, m - 1);
+}
+
 /** The true first-order wavelength at every spectral pixel. */
 function wavelengthMap(s: ResolvedScenario, spectralLength: number): Float64Array {
   const map = new Float64Array(spectralLength);
@@ -103,7 +109,7 @@ function planLines(s: ResolvedScenario, spectralLength: number, wavelengths: Flo
     for (let m = 1; m <= s.maxDiffractionOrder; m += 1) {
       const firstOrderWavelengthNm = m * wavelengthNm;
       if (firstOrderWavelengthNm < minNm * 0.9 || firstOrderWavelengthNm > maxNm * 1.1) continue;
-      const photons = base * t * Math.pow(s.secondOrderRelativeStrength, m - 1);
+      const photons = base * t * diffractionOrderWeight(s, m);
       if (photons < MIN_LINE_PHOTONS) continue;
       const pixel = wavelengthToPixel(s.geometry, wavelengthNm, m);
       if (!Number.isFinite(pixel) || pixel < -margin || pixel > spectralLength - 1 + margin) continue;
@@ -288,8 +294,10 @@ export function simulateFrame(scenario: SimScenario, seed: number, options: Simu
   drawContinuum(expected, s, layout, continuum);
   for (const p of planned) drawLine(expected, s, layout, p.line.pixel, p.sigmaPx, p.spatialSigmaPx, p.line.photons);
   const spurious: SimSpuriousPeak[] = s.spuriousPeaks.map((peak) => ({ ...peak }));
-  const spuriousSigma = s.spatialFwhmPx / FWHM_PER_SIGMA;
-  for (const peak of spurious) drawLine(expected, s, layout, peak.pixel, peak.fwhmPx / FWHM_PER_SIGMA, spuriousSigma, peak.photons);
+  for (const peak of spurious) {
+    const spatialSigma = (peak.spatialFwhmPx ?? s.spatialFwhmPx) / FWHM_PER_SIGMA;
+    drawLine(expected, s, layout, peak.pixel, peak.fwhmPx / FWHM_PER_SIGMA, spatialSigma, peak.photons);
+  }
 
   // Counts = pedestal + gain · Poisson(photons) + read noise, then defects, then clipping.
   const photonRandom = createRandom(mixSeed(seed, STREAM.photons));

@@ -20,10 +20,16 @@ export interface SimDriver {
   /** Tolerance the user gives on `nominalNm`, percent. */
   tolerancePercent: number;
   /**
-   * The effective (blue-shifted) wavelength that really makes the harmonics, nm; between
-   * nominalNm·(1 − tolerancePercent/100) and nominalNm.
+   * The effective (blue-shifted) wavelength that really makes the harmonics, nm. The classic
+   * scenarios (scenarios.ts) keep it in [nominalNm·(1 − tolerancePercent/100), nominalNm]; the
+   * field scenarios (field-scenarios.ts) put it anywhere a real laser and plasma put it:
+   * laserCentreNm · (1 − blueShiftRelative).
    */
   effectiveNm: number;
+  /** The laser's true centre wavelength, nm (field scenarios: a symmetric spread about the nameplate). Absent in classic scenarios. */
+  laserCentreNm?: number;
+  /** Ionisation blue shift of the harmonics relative to laserCentreNm (0.01 = 1 %). Absent in classic scenarios. */
+  blueShiftRelative?: number;
 }
 
 /** The harmonic envelope: photons per line before filters, as a function of harmonic order q. */
@@ -56,6 +62,10 @@ export interface SimSpuriousPeak {
   photons: number;
   /** Spectral FWHM, px. */
   fwhmPx: number;
+  /** Spatial FWHM, px (an unrelated line need not share the harmonics' divergence). @default the scenario's spatialFwhmPx */
+  spatialFwhmPx?: number;
+  /** What the peak stands for, for reports (e.g. "stray light", "plasma line"). */
+  origin?: string;
 }
 
 /** Everything needed to render a frame, as plain JSON; the seed of `simulateFrame` adds the noise. */
@@ -66,6 +76,11 @@ export interface SimScenario {
   class: string;
   /** Whether the data can decide the order labelling (false for deliberately ambiguous cases). */
   decidable: boolean;
+  /**
+   * The input itself is wrong or holds no comb (a profile of another instrument, a frame without
+   * harmonics): whatever the data, the right answer is `failed` or `ambiguous`. @default false
+   */
+  refusalExpected?: boolean;
   /** One line saying what the scenario is, for reports. */
   description: string;
   /** The TRUE geometry that renders the frame (includes detector tilt). */
@@ -94,6 +109,11 @@ export interface SimScenario {
   filters?: SimFilter[];
   /** Photons of the m = 2 line of a harmonic relative to its m = 1 line; 0 = none. @default 0.05 */
   secondOrderRelativeStrength?: number;
+  /**
+   * Photons of the m = 3 line of a harmonic relative to its m = 1 line (gratings often suppress
+   * it far more than m = 2). @default secondOrderRelativeStrength² (orders m ≥ 4 keep that power law)
+   */
+  thirdOrderRelativeStrength?: number;
   /** Highest diffraction order rendered. @default 2 */
   maxDiffractionOrder?: number;
   /** Spectral FWHM of a harmonic line, px (Gaussian, pixel-integrated). @default 4 */
