@@ -8,7 +8,7 @@ import { reduceFrame } from '../../shared/engine/reduce.ts';
 import { findPeaks } from '../../shared/engine/peaks.ts';
 import { applyCalibration, type ApplyOptions } from '../../shared/engine/apply.ts';
 import { EngineError } from '../../shared/engine/errors.ts';
-import { checkKnownLines, type KnownLine } from '../../shared/engine/known-lines.ts';
+import type { KnownLine } from '../../shared/engine/known-lines.ts';
 import { parseProfile, parseCalibrationFile } from './inputs.ts';
 import type { Calibration, Frame, LineShape, Parity, SpatialBand } from '../../shared/engine/types.ts';
 
@@ -88,16 +88,7 @@ export async function runCalibrate(args: CalibrateArgs) {
   const { frame, dark } = await decodeFrameAndDark(args.frameBytes, args.darkBytes, args.page, args.names);
   const profile = parseProfile(args.profile);
   const knownLines = args.knownLines ?? [];
-  // Off the detector is a bad --line value, known only now that the frame's size is.
-  for (const line of knownLines) {
-    try {
-      checkKnownLines([line], profile.spectralAxis === 'x' ? frame.width : frame.height);
-    } catch (error) {
-      if (error instanceof EngineError) throw new FlagValueError(`--line ${line.pixel}=${line.energyEv}: ${error.message}`);
-      throw error;
-    }
-  }
-  return calibrateFrame(frame, {
+  const result = calibrateFrame(frame, {
     profile,
     driverNm: args.driverNm,
     driverTolerancePct: args.driverTolerancePct,
@@ -110,6 +101,10 @@ export async function runCalibrate(args: CalibrateArgs) {
     background: args.background.length > 0 ? args.background : undefined,
     model: modelOption(args.model),
   });
+  // A line off the detector or with no peak near it is a bad --line value, seen only on the data.
+  const bad = result.badOption ? knownLines[result.badOption.index] : undefined;
+  if (bad) throw new FlagValueError(`--line ${bad.pixel}=${bad.energyEv}: ${result.message}`);
+  return result;
 }
 
 export interface ApplyArgs {

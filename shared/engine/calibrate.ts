@@ -75,10 +75,21 @@ export interface CalibrateResult {
   /** The map of the best hypothesis; given for `ambiguous` too (marked in its notes), null for `failed`. */
   calibration: Calibration | null;
   notes: string[];
+  /**
+   * On a `failed` result caused by an option that cannot be used rather than by the data (e.g. a
+   * known line with no peak near it): which option, and which entry of it. Callers answer it as
+   * bad input (exit code 2, a 400) instead of a failed calibration.
+   */
+  badOption?: { name: 'knownLines'; index: number };
 }
 
 function failedResult(message: string, peaks: CalibratedPeak[] = [], notes: string[] = []): CalibrateResult {
   return { status: 'failed', message, peaks, hypotheses: [], calibration: null, notes };
+}
+
+function badOptionOf(error: EngineError): CalibrateResult['badOption'] {
+  const { option, index } = error.details ?? {};
+  return option === 'knownLines' && typeof index === 'number' ? { name: option, index } : undefined;
 }
 
 function unlabelled(peaks: Peak[]): CalibratedPeak[] {
@@ -333,7 +344,10 @@ export function calibrateFrame(frame: Frame, options: CalibrateOptions): Calibra
     });
     return { status: assignment.status, message: assignment.message, peaks: labelled, hypotheses, calibration, notes: assignment.notes };
   } catch (error) {
-    if (error instanceof EngineError) return failedResult(error.message, unlabelled(peaks));
+    if (error instanceof EngineError) {
+      const badOption = badOptionOf(error);
+      return { ...failedResult(error.message, unlabelled(peaks)), ...(badOption ? { badOption } : {}) };
+    }
     throw error;
   }
 }

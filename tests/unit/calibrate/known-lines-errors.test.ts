@@ -48,10 +48,15 @@ describe('known lines that cannot be used', () => {
     expect(assignLines).toEqual([{ wavelengthNm: expect.closeTo(1239.841984 / 72.7, 6), pixel: 100, pixelSigma: 0.01, label: 'Al edge' }]);
   });
 
-  it('fails the calibration with that message and stores no map', () => {
+  it('fails the calibration with that message, names the entry and gives no map', () => {
     const result = calibrateFrame(frame, { ...options, knownLines: [{ pixel: 2000, energyEv: 70 }] });
     expect(result.status).toBe('failed');
     expect(result.calibration).toBeNull();
     expect(result.message).toBe('The known line at pixel 2000 (70 eV) is off the detector: its spectral pixels run from 0 to 1023.');
+    // Bad input, not bad data: callers answer it with exit code 2 or a 400.
+    expect(result.badOption).toEqual({ name: 'knownLines', index: 0 });
+    const second = calibrateFrame(frame, { ...options, knownLines: [{ pixel: 500, energyEv: 70 }, { pixel: 500, energyEv: 0 }] });
+    expect(second.badOption).toEqual({ name: 'knownLines', index: 1 });
+    expect(calibrateFrame(frame, options).badOption).toBeUndefined();
   });
 });

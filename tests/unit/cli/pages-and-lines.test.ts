@@ -175,11 +175,13 @@ describe('orderly --page with a dark frame, and --line', () => {
     expect(JSON.parse(refused.stdout)).toEqual({ status: 'failed', message });
   }, 120_000);
 
-  it('a line with no peak near it fails the calibration, naming the pixel', async () => {
+  it('refuses a line with no peak near it with exit code 2, naming the flag and the pixel', async () => {
     const first = truth.lines.filter((l) => l.diffractionOrder === 1).map((l) => l.pixel);
     const between = Math.round((first[4] + first[5]) / 2);
     const refused = await calibrate('plain-page2.tif', '--line', `${between}=50`);
-    expect(refused.code).toBe(1);
-    expect(JSON.parse(refused.stdout).message).toMatch(new RegExp(`^No detected peak within [\\d.]+ px of the known line at pixel ${between} \\(50 eV\\): the nearest detected peak is at pixel [\\d.]+\\.$`));
+    expect(refused.code).toBe(2);
+    expect(JSON.parse(refused.stdout).message).toMatch(
+      new RegExp(`^--line ${between}=50: No detected peak within [\\d.]+ px of the known line at pixel ${between} \\(50 eV\\): the nearest detected peak is at pixel [\\d.]+\\.$`),
+    );
   }, 120_000);
 });
