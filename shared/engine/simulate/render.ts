@@ -27,7 +27,7 @@ const STREAM = { jitter: 1, photons: 2, read: 3, hot: 4, cosmic: 5 } as const;
 
 /** Options of `simulateFrame` beyond the scenario. */
 export interface SimulateOptions {
-  /** Filter transmission source. @default references.ts filterTransmission, end values held outside 15-300 eV (filters.ts) */
+  /** Filter transmission source. @default the engine's one transmission (filters/transmission.ts, via filters.ts) */
   filterTransmission?: FilterTransmissionFn;
 }
 
@@ -166,14 +166,41 @@ function drawLine(expected: Float32Array, s: ResolvedScenario, layout: Layout, p
   }
 }
 
-/** Continuum photons per spectral pixel at the spatial centre (photonsPerPixel × filter transmission at the first-order energy). */
+/** Sub-samples per pixel of the continuum source: a filter edge sharper than a pixel is placed to 1/16 px. */
+const CONTINUUM_SUBSAMPLES = 16;
+
+/**
+ * Continuum photons per spectral pixel at the spatial centre: photonsPerPixel × the filters'
+ * transmission at the first-order energy, seen through the spectrometer's line profile and
+ * integrated over each pixel. The continuum passes the same slit and grating as the lines, so it
+ * is blurred by the same Gaussian (lineFwhmPx, the harmonics taken as narrower than the
+ * resolution): a filter edge on it is a step of the instrument's width, not a one-pixel cliff.
+ */
 function continuumPerPixel(s: ResolvedScenario, wavelengths: Float64Array, transmission: FilterTransmissionFn | undefined): Float64Array {
-  const perPixel = new Float64Array(wavelengths.length);
+  const n = wavelengths.length;
+  const perPixel = new Float64Array(n);
   const continuum = s.continuum;
   if (!continuum || !(continuum.photonsPerPixel > 0)) return perPixel;
-  for (let p = 0; p < wavelengths.length; p += 1) {
-    const nm = wavelengths[p];
-    perPixel[p] = Number.isFinite(nm) ? continuum.photonsPerPixel * filterStackTransmission(s.filters, wavelengthNmToEnergyEv(nm), transmission) : 0;
+  const sigmaPx = s.lineFwhmPx / FWHM_PER_SIGMA;
+  const reach = Math.ceil(PROFILE_HALF_WIDTH_SIGMA * sigmaPx) + 1;
+  const sub = CONTINUUM_SUBSAMPLES;
+  // The source on a sub-pixel grid from pixel −reach to n − 1 + reach; sample j sits at x(j).
+  const x = (j: number): number => -reach - 0.5 + (j + 0.5) / sub;
+  const source = new Float64Array((n + 2 * reach) * sub);
+  for (let j = 0; j < source.length; j += 1) {
+    const nm = pixelToWavelengthNm(s.geometry, x(j), 1);
+    source[j] = Number.isFinite(nm) && nm > 0 ? continuum.photonsPerPixel * filterStackTransmission(s.filters, wavelengthNmToEnergyEv(nm), transmission) : 0;
+  }
+  // Weight of sample m of a pixel's window in that pixel: the part of its Gaussian image inside
+  // the pixel. The window of pixel p starts at sample p·sub, so the weights are shared.
+  const window = (2 * reach + 1) * sub;
+  const weight = new Float64Array(window);
+  for (let m = 0; m < window; m += 1) weight[m] = gaussianFraction(x(m), sigmaPx, -0.5, 0.5) / sub;
+  for (let p = 0; p < n; p += 1) {
+    let sum = 0;
+    const start = p * sub;
+    for (let m = 0; m < window; m += 1) sum += source[start + m] * weight[m];
+    perPixel[p] = sum;
   }
   return perPixel;
 }

@@ -79,4 +79,36 @@ describe('filters cut the comb at the edge energy', () => {
     const edgeEv = HC_EV_NM / truth.wavelengthNmAtPixel[bestPixel];
     expect(Math.abs(edgeEv - alEdgeEv)).toBeLessThan(1);
   });
+
+  it('the continuum passes the spectrometer like the lines: the edge is a step of the line width, centred where the true map gives the edge energy', () => {
+    const lineFwhmPx = 4;
+    const scenario = baseScenario({
+      envelope: { plateauPhotons: 0, cutoffHarmonic: 80 },
+      continuum: { photonsPerPixel: 1e6, spatialFwhmPx: 60 },
+      filters: [{ material: 'Al', thicknessNm: 200 }],
+      readNoiseCounts: 0,
+      lineFwhmPx,
+    }, 46);
+    const { frame, truth } = simulateFrame(scenario, 3);
+    const sum = lineout(frame, 'x', 0, frame.height, 100);
+    const energy = (p: number): number => HC_EV_NM / truth.wavelengthNmAtPixel[p];
+    // Pixel of the edge energy on the true map (energy falls with pixel here), interpolated.
+    let edgePx = Number.NaN;
+    for (let p = 1; p < sum.length; p += 1) if (energy(p - 1) >= alEdgeEv && energy(p) < alEdgeEv) edgePx = p - 1 + (energy(p - 1) - alEdgeEv) / (energy(p - 1) - energy(p));
+    const k = Math.round(edgePx);
+    const low = sum[k - 12];
+    const high = sum[k + 12];
+    // Where the lineout crosses a level between its values 12 px either side, interpolated.
+    const crossing = (level: number): number => {
+      for (let p = k - 12; p < k + 12; p += 1) if (sum[p] <= level && sum[p + 1] > level) return p + (level - sum[p]) / (sum[p + 1] - sum[p]);
+      return Number.NaN;
+    };
+    expect(Math.abs(crossing(low + 0.5 * (high - low)) - edgePx)).toBeLessThan(0.15);
+    // A Gaussian-blurred step rises from 10 % to 90 % over 2.563 σ (common practice); pixel
+    // integration adds 1/12 px² to σ².
+    const sigmaPx = Math.sqrt((lineFwhmPx / (2 * Math.sqrt(2 * Math.LN2))) ** 2 + 1 / 12);
+    const rise = crossing(low + 0.9 * (high - low)) - crossing(low + 0.1 * (high - low));
+    expect(rise / (2.563 * sigmaPx)).toBeGreaterThan(0.85);
+    expect(rise / (2.563 * sigmaPx)).toBeLessThan(1.15);
+  });
 });
