@@ -12,6 +12,17 @@ export const pinSchema = z.object({
 });
 export type Pin = z.infer<typeof pinSchema>;
 
+/** "The peak near this pixel has this first-order photon energy": an absolute anchor of the scale. */
+export const knownLineSchema = z.object({
+  pixel: z.number({ error: 'known line pixel must be a number' }).nonnegative({ message: 'known line pixel must be ≥ 0' }),
+  energyEv: z
+    .number({ error: 'known line energyEv must be a number of eV' })
+    .positive({ message: 'known line energyEv must be positive' })
+    .max(100_000, { message: 'known line energyEv must be at most 100 000 eV' }),
+  label: z.string({ error: 'known line label must be text' }).trim().max(80, { message: 'known line label must be at most 80 characters' }).optional(),
+});
+export type KnownLineInput = z.infer<typeof knownLineSchema>;
+
 export const workbenchModelSchema = z.union(
   [
     z.literal('auto'),
@@ -37,6 +48,8 @@ export const workbenchRunSchema = z.object({
   /** Filter foils, engine notation: "Al" or "Al:200" (200 nm). */
   filters: z.array(z.string().trim().min(1).max(50)).max(10).default([]),
   pins: z.array(pinSchema).max(50).default([]),
+  /** Lines of known first-order photon energy, applied to every frame of the run. */
+  knownLines: z.array(knownLineSchema).max(20, { message: 'at most 20 known lines' }).default([]),
   model: workbenchModelSchema.default('auto'),
   regions: regionsSchema.optional(),
 });

@@ -89,12 +89,18 @@ export async function runWorkbench(deps: { db: Db; store: FrameStore }, user: Se
       parity: input.parity,
       filters,
       pins: input.pins,
+      knownLines: input.knownLines,
       dark,
       signal: picked.regions?.signal,
       background: picked.regions && picked.regions.background.length > 0 ? picked.regions.background : undefined,
       lineShape: picked.regions?.lineShape,
       model: input.model,
     });
+    // A known line the frame cannot use is bad input, not a failed calibration: refuse, store nothing.
+    if (result.badOption) {
+      const field = `${result.badOption.name}.${result.badOption.index}`;
+      throw new ValidationError(`${field}: ${result.message}${signals.length > 1 ? ` (frame ${row.originalName})` : ''}`, { issues: [{ path: field, message: result.message }] });
+    }
     results.push({ frameId: row.id, label: `${row.originalName}${row.pageCount > 1 ? ` page ${row.page + 1}` : ''}`, result });
   }
   const result = combineResults(results);
