@@ -6,7 +6,7 @@
  */
 import { wavelengthToPixel } from '../grating.ts';
 import type { GratingGeometry } from '../types.ts';
-import { invertSpd, levenbergMarquardt } from './lm.ts';
+import { levenbergMarquardt } from '../fit/levenberg-marquardt.ts';
 
 /** Indices into the full parameter vector. */
 export const P_CENTER = 0;
@@ -106,7 +106,6 @@ export function fitModel(ctx: ModelContext, points: ModelPoint[], start: ArrayLi
   };
   const problem = {
     residualCount: nPoints + nFree,
-    steps,
     residuals(q: Float64Array, out: Float64Array): void {
       apply(q);
       const lambda0 = full[P_DRIVER];
@@ -120,7 +119,10 @@ export function fitModel(ctx: ModelContext, points: ModelPoint[], start: ArrayLi
   };
   const q0 = new Float64Array(nFree);
   for (let j = 0; j < nFree; j++) q0[j] = full[free[j]];
-  const lm = nFree > 0 ? levenbergMarquardt(problem, q0) : null;
+  // Forward differences with the context's steps. Hypotheses are told apart by χ² differences of
+  // order 1 to 16 (ENGINE-NOTES.md), so χ² to 1e-6 relative plus 1e-6 absolute (exact points take
+  // χ² to ≈ 0, where a relative test alone would never stop) is ample, and keeps the search fast.
+  const lm = nFree > 0 ? levenbergMarquardt(problem, q0, { steps, maxIterations: 60, ftol: 1e-6, ftolAbsolute: 1e-6 }) : null;
   const qBest = lm ? lm.parameters : q0;
   apply(qBest);
   const parameters = Float64Array.from(full);
@@ -139,7 +141,7 @@ export function fitModel(ctx: ModelContext, points: ModelPoint[], start: ArrayLi
     chiSquarePosition: chiPos,
     chiSquarePrior: chiPrior,
     residualsPx,
-    covariance: lm ? invertSpd(lm.normalMatrix, nFree) : null,
+    covariance: lm ? lm.covariance : null,
     freeIndices: free.slice(),
   };
 }

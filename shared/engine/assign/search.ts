@@ -405,3 +405,23 @@ const LEAVE_OUT_MAX_POINTS = 16;
 export function refit(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, start: ArrayLike<number>, warm = false): { fit: ModelFit; points: ModelPoint[]; pointPeak: number[] } {
   return fitLabels(ctx, harmonic, order, start, warm);
 }
+
+/** Pixel uncertainty of a prediction from the fit covariance (scaled by the fit's own reduced χ²). */
+export function predictionSigma(ctx: SearchContext, fit: ModelFit, lambda1: number, s2: number): number {
+  if (!fit.covariance) return 0.3;
+  const f = fit.freeIndices;
+  const base = predictPixel(ctx.model, fit.parameters, lambda1);
+  const grad = new Float64Array(f.length);
+  const p = Float64Array.from(fit.parameters);
+  for (let j = 0; j < f.length; j++) {
+    const h = ctx.model.steps[f[j]] * 10;
+    p[f[j]] += h;
+    const lam = f[j] === P_DRIVER ? lambda1 * (p[P_DRIVER] / fit.parameters[P_DRIVER]) : lambda1;
+    grad[j] = (predictPixel(ctx.model, p, lam) - base) / h;
+    p[f[j]] = fit.parameters[f[j]];
+  }
+  let v = 0;
+  for (let a = 0; a < f.length; a++) for (let b = 0; b < f.length; b++) v += grad[a] * fit.covariance[a * f.length + b] * grad[b];
+  return Number.isFinite(v) && v >= 0 ? Math.sqrt(v * s2) : 0.3;
+}
+

@@ -18,6 +18,8 @@
 import { P_DRIVER, PARAMETER_NAMES, wallResidual, type ModelFit, type ModelPoint } from './model.ts';
 import type { SearchContext } from './search.ts';
 
+/** Margin in −2 ln L for `unique` (≈ 4σ). */
+export const UNIQUE_MARGIN = 16;
 /** Floor on a centroid's uncertainty in the goodness-of-fit gate and the final fit, px (common practice: pixel-response and line-shape limits). */
 export const FIT_FLOOR_PX = 0.02;
 /** Reduced χ² (with the floor) beyond which the answer is `failed`, not `ambiguous`. */
