@@ -165,19 +165,22 @@ function strayLines(c: Context, count: number, lineFwhmPx: number, spatialFwhmPx
   });
 }
 
-/** A profile of the wrong configuration: the turret's other grating, a wrong distance or a wrong incidence. */
-function wrongProfile(r: Random, p: InstrumentProfile): { profile: InstrumentProfile; why: string } {
+/**
+ * A profile of the wrong configuration, off the truth by more than any realignment: the turret's
+ * other grating, a distance off by 20-50 %, or an incidence off by 2-3°.
+ */
+function wrongProfile(r: Random, p: InstrumentProfile, g: GratingGeometry): { profile: InstrumentProfile; why: string } {
   const kind = r.integer(0, 2);
   if (kind === 0) {
-    const factor = r.pick([0.5, 2]);
-    return { profile: { ...p, grooveDensityPerMm: p.grooveDensityPerMm * factor }, why: `profile of the other grating (${p.grooveDensityPerMm * factor} l/mm)` };
+    const density = g.grooveDensityPerMm * r.pick([0.5, 2]);
+    return { profile: { ...p, grooveDensityPerMm: density }, why: `profile of the other grating (${density} l/mm)` };
   }
   if (kind === 1) {
-    const factor = r.uniform() < 0.5 ? r.between(0.6, 0.8) : r.between(1.25, 1.5);
-    return { profile: { ...p, detectorDistanceMm: p.detectorDistanceMm * factor }, why: `profile distance off by ×${factor.toFixed(2)}` };
+    const factor = r.uniform() < 0.5 ? r.between(0.5, 0.8) : r.between(1.25, 1.5);
+    return { profile: { ...p, detectorDistanceMm: g.detectorDistanceMm * factor }, why: `profile distance ×${factor.toFixed(2)} the true one` };
   }
   const off = (r.uniform() < 0.5 ? -1 : 1) * r.between(2, 3);
-  return { profile: { ...p, incidenceAngleDeg: p.incidenceAngleDeg + off }, why: `profile incidence off by ${off.toFixed(2)}°` };
+  return { profile: { ...p, incidenceAngleDeg: g.incidenceAngleDeg + off }, why: `profile incidence off the true one by ${off.toFixed(2)}°` };
 }
 
 /** The field classes on a grazing-incidence instrument. */
@@ -249,12 +252,13 @@ function grazingDraft(c: Context): Draft | null {
       const missing = new Set<number>([r.pick(inside)]);
       if (r.uniform() < 0.5) missing.add(r.pick(inside));
       fields.missingHarmonics = [...missing];
-      fields.missingRelativeStrength = r.between(0, 0.03);
+      fields.missingRelativeStrength = r.between(0, 0.003);
       strayCount = r.integer(2, 4);
       fields.hotPixelFraction = r.between(5e-5, 3e-4);
       fields.cosmicRayCount = r.integer(5, 30);
       minVisible = 6;
       description = `odd comb with missing order(s) ${[...missing].join(', ')}, ${strayCount} stray/unrelated lines, hot pixels and cosmic rays`;
+      accept = (lines) => !lines.some((l) => l.visible && l.diffractionOrder === 1 && missing.has(l.harmonic));
       break;
     }
     case 'field-ff-all-two-colour':
@@ -337,7 +341,7 @@ function grazingDraft(c: Context): Draft | null {
   const truthProfile = drawNominalProfile(r, g, c.spectralAxis, c.spectralLength, `Simulated flat-field XUV spectrometer ${id}`);
   let profile = truthProfile;
   if (k === 'field-wrong-profile') {
-    const wrong = wrongProfile(r, truthProfile);
+    const wrong = wrongProfile(r, truthProfile, g);
     profile = wrong.profile;
     profileNote = `; ${wrong.why}`;
   }
@@ -413,6 +417,9 @@ function normalIncidenceDraft(c: Context): Draft | null {
     detectorTiltDeg: (r.uniform() < 0.5 ? -1 : 1) * r.between(N.tiltDeg[0], N.tiltDeg[1]),
   };
   if (!(centralWavelengthNm(incidenceAngleDeg, grooveDensityPerMm, beta0) > 0)) return null;
+  // The whole detector inside the instrument's band, not only the comb.
+  const [loEv, hiEv] = detectorRangeEv(g, c.spectralLength);
+  if (!(HC_EV_NM / hiEv >= N.bandNm[0] && HC_EV_NM / loEv <= N.bandNm[1])) return null;
   const base = commonFields(c, 3);
   const gain = base.gainCountsPerPhoton ?? 1;
   const envelope = {
