@@ -35,18 +35,33 @@ export function pixelToWavelengthNm(g: GratingGeometry, pixel: number, diffracti
   return lambda > 0 ? lambda : Number.NaN;
 }
 
-/** Pixel where wavelength λ in order m lands (may lie off the detector); NaN when |sin β| > 1 or the ray misses the plane. */
-export function wavelengthToPixel(g: GratingGeometry, wavelengthNm: number, diffractionOrder = 1): number {
+/** Diffraction angle β (radians) of wavelength λ in order m; NaN when |sin β| > 1. */
+export function wavelengthToDiffractionAngleRad(g: Pick<GratingGeometry, 'incidenceAngleDeg' | 'grooveDensityPerMm'>, wavelengthNm: number, diffractionOrder = 1): number {
   const sinBeta = Math.sin(g.incidenceAngleDeg * DEG) - (diffractionOrder * wavelengthNm) / groovePeriodNm(g.grooveDensityPerMm);
-  if (sinBeta < -1 || sinBeta > 1) return Number.NaN;
-  const offset = direction(g) * (Math.asin(sinBeta) - g.detectorAngleDeg * DEG);
+  return sinBeta < -1 || sinBeta > 1 ? Number.NaN : Math.asin(sinBeta);
+}
+
+/**
+ * Position along the detector plane from the centre pixel per unit distance, s/L, where
+ * wavelength λ in order m lands: linear in L and the centre, so two lines fix both. NaN when the
+ * ray misses the plane.
+ */
+export function planeOffsetPerDistance(g: GratingGeometry, wavelengthNm: number, diffractionOrder = 1): number {
+  const beta = wavelengthToDiffractionAngleRad(g, wavelengthNm, diffractionOrder);
+  if (!Number.isFinite(beta)) return Number.NaN;
+  const offset = direction(g) * (beta - g.detectorAngleDeg * DEG);
   if (Math.abs(offset) >= Math.PI / 2) return Number.NaN;
   const tilt = g.detectorTiltDeg * DEG;
   const t = Math.tan(offset);
   const denominator = Math.cos(tilt) - t * Math.sin(tilt);
-  if (denominator <= 0) return Number.NaN;
-  const sMm = (g.detectorDistanceMm * t) / denominator;
-  return g.detectorCenterPixel + sMm / (g.pixelPitchUm * 1e-3);
+  return denominator <= 0 ? Number.NaN : t / denominator;
+}
+
+/** Pixel where wavelength λ in order m lands (may lie off the detector); NaN when |sin β| > 1 or the ray misses the plane. */
+export function wavelengthToPixel(g: GratingGeometry, wavelengthNm: number, diffractionOrder = 1): number {
+  const u = planeOffsetPerDistance(g, wavelengthNm, diffractionOrder);
+  if (!Number.isFinite(u)) return Number.NaN;
+  return g.detectorCenterPixel + (g.detectorDistanceMm * u) / (g.pixelPitchUm * 1e-3);
 }
 
 /** Local dispersion dλ/dp (nm per pixel) at `pixel`, by central difference. */

@@ -8,7 +8,7 @@
  * m·λ = d(sin α − sin β)).
  */
 import { HC_EV_NM } from '../constants.ts';
-import { pixelToWavelengthNm } from '../grating.ts';
+import { groovePeriodNm, pixelToWavelengthNm, planeOffsetPerDistance, wavelengthToDiffractionAngleRad } from '../grating.ts';
 import {
   fitModel,
   type Wall,
@@ -214,14 +214,13 @@ export function seedStart(ctx: SearchContext, peakIndex: number, q: number): Flo
   const p = Float64Array.from(ctx.model.nominal);
   const lambda1 = p[P_DRIVER] / q;
   const g = geometryOf(ctx.model, p);
-  const sinBeta = Math.sin((g.incidenceAngleDeg * Math.PI) / 180) - lambda1 / (1e6 / g.grooveDensityPerMm);
-  if (Math.abs(sinBeta) >= 1) return null;
+  const beta = wavelengthToDiffractionAngleRad(g, lambda1, 1);
+  if (!Number.isFinite(beta)) return null;
   if (ctx.angleKnown) {
     const px = predictPixel(ctx.model, p, lambda1);
     if (!Number.isFinite(px)) return null;
     p[P_CENTER] += ctx.peaks[peakIndex].pixel - px;
   } else {
-    const beta = Math.asin(sinBeta);
     const sMm = (ctx.peaks[peakIndex].pixel - p[P_CENTER]) * g.pixelPitchUm * 1e-3;
     const dir = g.wavelengthIncreasesWithPixel ? -1 : 1;
     p[P_ANGLE] = ((beta - dir * Math.atan(sMm / g.detectorDistanceMm)) * 180) / Math.PI;
@@ -242,21 +241,9 @@ const DEG = Math.PI / 180;
 export function linearSeed(ctx: SearchContext, a: number, qa: number, b: number, qb: number): { start: Float64Array; cost: number } | null {
   const m = ctx.model;
   const p = Float64Array.from(m.nominal);
-  const d = 1e6 / m.grooveDensityPerMm;
-  const alpha = p[P_INCIDENCE] * DEG;
-  const beta0 = p[P_ANGLE] * DEG;
-  const tilt = p[P_TILT] * DEG;
-  const dir = m.wavelengthIncreasesWithPixel ? -1 : 1;
+  const g = geometryOf(m, p);
   const pitchMm = m.pixelPitchUm * 1e-3;
-  const u = (q: number): number => {
-    const sinBeta = Math.sin(alpha) - p[P_DRIVER] / q / d;
-    if (Math.abs(sinBeta) >= 1) return Number.NaN;
-    const off = dir * (Math.asin(sinBeta) - beta0);
-    if (!(Math.abs(off) < Math.PI / 2 - 1e-3)) return Number.NaN;
-    const t = Math.tan(off);
-    const denominator = Math.cos(tilt) - t * Math.sin(tilt);
-    return denominator > 0 ? t / denominator : Number.NaN;
-  };
+  const u = (q: number): number => planeOffsetPerDistance(g, p[P_DRIVER] / q, 1);
   const ua = u(qa);
   const ub = u(qb);
   if (!Number.isFinite(ua) || !Number.isFinite(ub) || ua === ub) return null;
@@ -275,9 +262,11 @@ export function linearSeed(ctx: SearchContext, a: number, qa: number, b: number,
   const lambdaA = p[P_DRIVER] / qa;
   const [lambdaLo, lambdaHi] = driverSpanNm(ctx.driver);
   const driverSpread = (lambdaHi - lambdaLo) / 2 / p[P_DRIVER];
-  const cosBeta = Math.sqrt(Math.max(1e-9, 1 - (Math.sin(alpha) - lambdaA / d) ** 2));
+  // dβ = (cos α dα − dλ/d)/cos β from the grating equation: the shift an incidence or λ0 change can mimic.
+  const alpha = p[P_INCIDENCE] * DEG;
+  const cosBeta = Math.max(1e-5, Math.cos(wavelengthToDiffractionAngleRad(g, lambdaA, 1)));
   const dAlpha = ((incWall.hi - incWall.lo) / 2) * DEG;
-  const shiftFree = (L * (dAlpha * Math.abs(Math.cos(alpha)) / cosBeta + (driverSpread * lambdaA) / (d * cosBeta))) / pitchMm + 0.02 * m.pixelCount;
+  const shiftFree = (L * (dAlpha * Math.abs(Math.cos(alpha)) / cosBeta + (driverSpread * lambdaA) / (groovePeriodNm(m.grooveDensityPerMm) * cosBeta))) / pitchMm + 0.02 * m.pixelCount;
   const beyond = c < cWall.lo ? cWall.lo - c : c > cWall.hi ? c - cWall.hi : 0;
   if (beyond > shiftFree) return null;
   p[P_CENTER] = c;
