@@ -14,6 +14,7 @@ import type { SpectrumAxis } from '@/features/spectra/lib/spectrum-axis';
 import { ErrorAlert } from '@/components/alert';
 import { Button } from '@/components/button';
 import { Loading } from '@/components/page';
+import { describeAbsoluteScale } from '../../../shared/engine/scale-note.ts';
 
 const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString() : 'open end');
 
@@ -78,7 +79,7 @@ export function VersionReportRoute() {
               {c.driverNm.toFixed(3)} ± {c.driverSigmaNm.toFixed(3)} nm, {c.parity === 'odd' ? 'odd harmonics' : 'all harmonics'}
             </dd>
             <dt className="text-slate-500">absolute scale</dt>
-            <dd>{c.absoluteScale === 'anchored' ? 'anchored' : `driver tolerance (±${(c.scaleSigmaRelative * 100).toFixed(2)} %)`}</dd>
+            <dd>{describeAbsoluteScale(c)}</dd>
             <dt className="text-slate-500">points, rms residual</dt>
             <dd>
               {c.points.length} · {v.rmsResidualPx.toFixed(3)} px ({(c.residualRmsNm * 1000).toFixed(2)} pm) · χ²/dof {c.reducedChiSquare.toFixed(2)}
@@ -101,7 +102,7 @@ export function VersionReportRoute() {
           </div>
         </Section>
         <Section title="Calibration peaks">
-          <PeaksTable peaks={v.result.peaks} calibration={c} best={null} pins={v.inputs.pins} />
+          <PeaksTable peaks={v.result.peaks} calibration={c} best={null} pins={v.inputs.pins} knownLines={v.inputs.knownLines ?? []} />
         </Section>
         {frameId ? (
           <Section title="Spectrum of the frame">

@@ -14,6 +14,7 @@ import { PeaksTable } from '@/features/workbench/components/peaks-table';
 import { ResidualsPlot } from '@/features/workbench/components/residuals-plot';
 import { ErrorAlert } from '@/components/alert';
 import { Loading, PageHeader, Panel } from '@/components/page';
+import { describeAbsoluteScale } from '../../../shared/engine/scale-note.ts';
 
 const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString() : 'open end');
 
@@ -68,7 +69,7 @@ export function VersionRoute() {
                 {v.calibration.driverNm.toFixed(3)} ± {v.calibration.driverSigmaNm.toFixed(3)} nm
               </dd>
               <dt className="text-slate-500">absolute scale</dt>
-              <dd>{v.calibration.absoluteScale === 'anchored' ? 'anchored' : `driver tolerance (±${(v.calibration.scaleSigmaRelative * 100).toFixed(2)} %)`}</dd>
+              <dd data-testid="version-scale">{describeAbsoluteScale(v.calibration)}</dd>
               <dt className="text-slate-500">peaks, rms residual</dt>
               <dd>
                 {v.peakCount}, {v.rmsResidualPx.toFixed(3)} px
@@ -107,7 +108,7 @@ export function VersionRoute() {
           <VersionSpectra versionNumber={v.number} count={v.spectraCount} spectra={v.spectra} />
         </Panel>
         <Panel title="Peaks">
-          <PeaksTable peaks={v.result.peaks} calibration={v.calibration} best={null} pins={v.inputs.pins} />
+          <PeaksTable peaks={v.result.peaks} calibration={v.calibration} best={null} pins={v.inputs.pins} knownLines={v.inputs.knownLines ?? []} />
         </Panel>
       </div>
     </>

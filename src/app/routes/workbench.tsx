@@ -11,6 +11,7 @@ import { useRunWorkbench } from '@/features/workbench/api/run-workbench';
 import { SaveDraftForm } from '@/features/workbench/components/save-draft-form';
 import { WorkbenchForm, type WorkbenchSettings } from '@/features/workbench/components/workbench-form';
 import { WorkbenchResults } from '@/features/workbench/components/workbench-results';
+import type { KnownLine } from '@/features/workbench/lib/known-lines';
 import type { Pin } from '@/features/workbench/lib/pins';
 import { useDecodedFrame } from '@/lib/frame-worker/use-decoded-frame';
 import { useLineout } from '@/lib/frame-worker/use-lineout';
@@ -27,6 +28,7 @@ function toRunInput(frameIds: string[], s: WorkbenchSettings): WorkbenchRunInput
     parity: s.parity,
     filters: s.filters,
     pins: s.pins,
+    knownLines: s.knownLines,
     model: s.model,
   };
 }
@@ -51,7 +53,7 @@ export function WorkbenchRoute() {
   useEffect(() => {
     if (settings || !first.data) return;
     const f = first.data;
-    setSettings({ driverNm: f.driverNm ?? 800, driverTolerancePct: 1, parity: f.parity ?? 'odd', filters: f.filters, model: 'auto', pins: [], darkFrameId: '' });
+    setSettings({ driverNm: f.driverNm ?? 800, driverTolerancePct: 1, parity: f.parity ?? 'odd', filters: f.filters, model: 'auto', pins: [], knownLines: [], darkFrameId: '' });
   }, [first.data, settings]);
 
   const decoded = useDecodedFrame(first.data ? first.data.id : null, first.data?.page ?? 0);
@@ -96,6 +98,14 @@ export function WorkbenchRoute() {
         start(next);
       }
     : undefined;
+  const onKnownLines = mayRun
+    ? (knownLines: KnownLine[]) => {
+        if (!settings) return;
+        const next = { ...settings, knownLines };
+        setSettings(next);
+        start(next);
+      }
+    : undefined;
 
   return (
     <>
@@ -135,7 +145,7 @@ export function WorkbenchRoute() {
             <ErrorAlert error={run.error} title="The run was refused" />
           </div>
         </Panel>
-        {run.data ? <WorkbenchResults run={run.data} lineoutCounts={lineout?.counts ?? null} onPins={onPins} /> : null}
+        {run.data ? <WorkbenchResults run={run.data} lineoutCounts={lineout?.counts ?? null} onPins={onPins} onKnownLines={onKnownLines} /> : null}
         {run.data && mayRun ? (
           <Panel title="Save as a calibration version">
             <SaveDraftForm

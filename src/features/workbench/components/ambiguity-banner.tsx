@@ -2,8 +2,8 @@ import type { CalibrateResult } from '../../../../shared/engine/calibrate.ts';
 import { Alert } from '@/components/alert';
 
 /**
- * The run's verdict in words. For `ambiguous` it says what would decide it: a pin, a filter
- * edge in range, or a wider range (more lines on the camera), with the engine's own message.
+ * The run's verdict in words. For `ambiguous` it says what would decide it: a pin, a known line,
+ * a filter edge in range, or a wider range (more lines on the camera), with the engine's own message.
  */
 export function AmbiguityBanner({ result }: { result: CalibrateResult }) {
   if (result.status === 'unique') {
@@ -30,6 +30,10 @@ export function AmbiguityBanner({ result }: { result: CalibrateResult }) {
       <ul className="mt-1 list-disc pl-5">
         <li>
           <strong>a pin</strong> — if you know the order of one peak (e.g. from a filter cut-off seen earlier), use <em>Pin order…</em> in the peaks table, or <em>Use this</em> on a hypothesis;
+        </li>
+        <li>
+          <strong>a known line</strong> — a peak whose photon energy you know (an emission line, or a harmonic measured elsewhere): use <em>Known energy…</em> in the peaks table; it
+          also anchors the absolute scale;
         </li>
         <li>
           <strong>a filter edge</strong> — a frame through a filter whose absorption edge falls inside the camera&apos;s range (its edge energy is taken from the reference tables), with that filter listed below;

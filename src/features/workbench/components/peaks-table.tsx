@@ -2,6 +2,7 @@ import { useState } from 'react';
 import type { CalibratedPeak, HypothesisSummary } from '../../../../shared/engine/calibrate.ts';
 import type { Calibration } from '../../../../shared/engine/types.ts';
 import { Button } from '@/components/button';
+import { parseKnownLine, type KnownLine } from '../lib/known-lines.ts';
 import type { Pin } from '../lib/pins.ts';
 
 export interface PeaksTableProps {
@@ -12,6 +13,66 @@ export interface PeaksTableProps {
   pins: Pin[];
   /** Present when the user may pin: pins an order on a peak and reruns. */
   onPin?: (pin: Pin) => void;
+  knownLines: KnownLine[];
+  /** Present when the user may run: states the photon energy of a peak (a known line) and reruns. */
+  onKnownLine?: (line: KnownLine) => void;
+}
+
+/** The known-energy cell of one peak: the line stated on it, or a small form to state one. */
+function KnownEnergyCell({ peak, known, onKnownLine }: { peak: CalibratedPeak; known: KnownLine | undefined; onKnownLine?: (line: KnownLine) => void }) {
+  const [text, setText] = useState<{ energyEv: string; label: string } | null>(null);
+  const [error, setError] = useState<string | null>(null);
+  if (known) return <span className="rounded bg-accent-100 px-1.5 py-0.5 text-xs text-accent-800">known {known.energyEv} eV{known.label ? ` (${known.label})` : ''}</span>;
+  if (!onKnownLine) return null;
+  const pixel = Number(peak.pixel.toFixed(2));
+  if (!text) {
+    return (
+      <Button variant="ghost" className="px-2 py-0.5 text-xs" onClick={() => setText({ energyEv: '', label: '' })}>
+        Known energy…
+      </Button>
+    );
+  }
+  return (
+    <form
+      className="flex flex-wrap items-center gap-1"
+      onSubmit={(e) => {
+        e.preventDefault();
+        const parsed = parseKnownLine({ pixel: String(pixel), ...text });
+        if ('errors' in parsed) {
+          setError(Object.values(parsed.errors).join('; '));
+          return;
+        }
+        onKnownLine(parsed.line);
+        setText(null);
+        setError(null);
+      }}
+    >
+      <input
+        aria-label={`Photon energy (eV) of the peak at pixel ${peak.pixel.toFixed(1)}`}
+        className="w-20 rounded border border-slate-300 px-1.5 py-0.5"
+        type="number"
+        step="any"
+        autoFocus
+        value={text.energyEv}
+        onChange={(e) => setText({ ...text, energyEv: e.target.value })}
+      />
+      <input
+        aria-label={`Label of the peak at pixel ${peak.pixel.toFixed(1)}`}
+        className="w-24 rounded border border-slate-300 px-1.5 py-0.5"
+        placeholder="label"
+        value={text.label}
+        onChange={(e) => setText({ ...text, label: e.target.value })}
+      />
+      <Button type="submit" className="px-2 py-0.5 text-xs">
+        Use as known line
+      </Button>
+      {error ? (
+        <span role="alert" className="text-xs text-red-700">
+          {error}
+        </span>
+      ) : null}
+    </form>
+  );
 }
 
 function residualPmFor(peak: CalibratedPeak, calibration: Calibration | null): number | null {
@@ -19,8 +80,8 @@ function residualPmFor(peak: CalibratedPeak, calibration: Calibration | null): n
   return point ? point.residualNm * 1000 : null;
 }
 
-/** One row per peak: position, harmonic and diffraction order, wavelength, energy, residual; a pin field per peak. */
-export function PeaksTable({ peaks, calibration, best, pins, onPin }: PeaksTableProps) {
+/** One row per peak: position, harmonic and diffraction order, wavelength, energy, residual; a pin and a known-energy field per peak. */
+export function PeaksTable({ peaks, calibration, best, pins, onPin, knownLines, onKnownLine }: PeaksTableProps) {
   const [editing, setEditing] = useState<{ index: number; value: string } | null>(null);
   if (peaks.length === 0) return <p className="text-sm text-slate-500">No peaks found.</p>;
   return (
@@ -35,7 +96,8 @@ export function PeaksTable({ peaks, calibration, best, pins, onPin }: PeaksTable
             <th className="py-1.5 pr-3 font-medium">energy (eV)</th>
             <th className="py-1.5 pr-3 font-medium">residual (pm)</th>
             <th className="py-1.5 pr-3 font-medium">SNR</th>
-            <th className="py-1.5 font-medium">pin</th>
+            <th className="py-1.5 pr-3 font-medium">pin</th>
+            <th className="py-1.5 font-medium">known energy</th>
           </tr>
         </thead>
         <tbody>
@@ -56,7 +118,7 @@ export function PeaksTable({ peaks, calibration, best, pins, onPin }: PeaksTable
                 <td className="py-1.5 pr-3">{peak.energyEv?.toFixed(2) ?? '—'}</td>
                 <td className="py-1.5 pr-3">{residual === null ? '—' : residual.toFixed(1)}</td>
                 <td className="py-1.5 pr-3">{peak.snr.toFixed(0)}</td>
-                <td className="py-1.5">
+                <td className="py-1.5 pr-3">
                   {pinned ? <span className="rounded bg-accent-100 px-1.5 py-0.5 text-xs text-accent-800">pinned q={pinned.harmonic}</span> : null}
                   {onPin && !pinned ? (
                     editing?.index === index ? (
@@ -91,6 +153,9 @@ export function PeaksTable({ peaks, calibration, best, pins, onPin }: PeaksTable
                       </Button>
                     )
                   ) : null}
+                </td>
+                <td className="py-1.5">
+                  <KnownEnergyCell peak={peak} known={knownLines.find((l) => Math.abs(l.pixel - peak.pixel) < 1)} onKnownLine={onKnownLine} />
                 </td>
               </tr>
             );

@@ -3,6 +3,7 @@ import type { WorkbenchModel } from '../../../../shared/api/workbench.ts';
 import { driverPresets, knownFilterMaterials } from '../../../../shared/engine/references.ts';
 import { Button } from '@/components/button';
 import { SelectField, TextField } from '@/components/field';
+import { knownLineText, parseKnownLine, withKnownLine, type KnownLine } from '../lib/known-lines.ts';
 import type { Pin } from '../lib/pins.ts';
 
 /** The workbench inputs as the form holds them. */
@@ -13,6 +14,8 @@ export interface WorkbenchSettings {
   filters: string[];
   model: WorkbenchModel;
   pins: Pin[];
+  /** Peaks of known first-order photon energy: absolute anchors of the scale. */
+  knownLines: KnownLine[];
   darkFrameId: string;
 }
 
@@ -40,9 +43,11 @@ function parseModel(value: string): WorkbenchModel {
   return { polynomialDegree: degree === 'auto' ? 'auto' : Number(degree) };
 }
 
-/** Driver, tolerance, parity, filters, model and pins, and the Run button. */
+/** Driver, tolerance, parity, filters, model, pins and known lines, and the Run button. */
 export function WorkbenchForm({ settings, onChange, onRun, running, darkFrames, mayRun }: WorkbenchFormProps) {
   const [pinText, setPinText] = useState({ pixel: '', harmonic: '' });
+  const [lineText, setLineText] = useState({ pixel: '', energyEv: '', label: '' });
+  const [lineErrors, setLineErrors] = useState<Partial<Record<'pixel' | 'energyEv' | 'label', string>>>({});
   const set = <K extends keyof WorkbenchSettings>(key: K, value: WorkbenchSettings[K]) => onChange({ ...settings, [key]: value });
   const preset = PRESETS.find((p) => p.wavelengthNm === settings.driverNm);
   const toggleFilter = (material: string) => {
@@ -148,6 +153,62 @@ export function WorkbenchForm({ settings, onChange, onRun, running, darkFrames, 
               }}
             >
               Add pin
+            </Button>
+          </div>
+        ) : null}
+      </div>
+      <div>
+        <p className="text-sm font-medium text-slate-700">Known lines (a peak of known photon energy: an absolute anchor of the scale)</p>
+        <p className="text-xs text-slate-500">
+          An emission or absorption line of known energy, or a harmonic measured elsewhere (E = q·hc/λ0), in first diffraction order. A pin fixes an order; only a known line fixes the
+          absolute scale. Use <em>Known energy…</em> in the peaks table to take a peak&apos;s pixel.
+        </p>
+        <ul className="mt-1 flex flex-wrap gap-2" aria-label="Known lines">
+          {settings.knownLines.length === 0 ? <li className="text-sm text-slate-500">none</li> : null}
+          {settings.knownLines.map((line) => (
+            <li key={line.pixel} className="flex items-center gap-1 rounded bg-accent-100 px-2 py-0.5 text-sm text-accent-800">
+              {knownLineText(line)}
+              {mayRun ? (
+                <button
+                  type="button"
+                  aria-label={`Remove the known line at pixel ${line.pixel}`}
+                  className="ml-1 text-accent-800 hover:text-red-700"
+                  onClick={() => set('knownLines', settings.knownLines.filter((x) => x !== line))}
+                >
+                  ×
+                </button>
+              ) : null}
+            </li>
+          ))}
+        </ul>
+        {mayRun ? (
+          // No min/max on these: the browser would then block the Run button over a half-typed line; the schema checks them on Add.
+          <div className="mt-2 flex flex-wrap items-start gap-2">
+            <TextField label="Line pixel" type="number" step="any" value={lineText.pixel} error={lineErrors.pixel} onChange={(e) => setLineText((t) => ({ ...t, pixel: e.target.value }))} />
+            <TextField
+              label="Line energy (eV)"
+              type="number"
+              step="any"
+              value={lineText.energyEv}
+              error={lineErrors.energyEv}
+              onChange={(e) => setLineText((t) => ({ ...t, energyEv: e.target.value }))}
+            />
+            <TextField label="Line label (optional)" value={lineText.label} error={lineErrors.label} placeholder="e.g. Ar II, H23" onChange={(e) => setLineText((t) => ({ ...t, label: e.target.value }))} />
+            <Button
+              variant="secondary"
+              className="mt-6"
+              onClick={() => {
+                const parsed = parseKnownLine(lineText);
+                if ('errors' in parsed) {
+                  setLineErrors(parsed.errors);
+                  return;
+                }
+                set('knownLines', withKnownLine(settings.knownLines, parsed.line));
+                setLineText({ pixel: '', energyEv: '', label: '' });
+                setLineErrors({});
+              }}
+            >
+              Add known line
             </Button>
           </div>
         ) : null}

@@ -1,5 +1,6 @@
 import type { WorkbenchRun } from '../../../../shared/api/workbench.ts';
 import { Panel } from '@/components/page';
+import { withKnownLine, type KnownLine } from '../lib/known-lines.ts';
 import type { Pin } from '../lib/pins.ts';
 import { AmbiguityBanner } from './ambiguity-banner.tsx';
 import { HypothesesTable } from './hypotheses-table.tsx';
@@ -7,21 +8,27 @@ import { LineoutOrdersPlot } from './lineout-orders-plot.tsx';
 import { MapPlot } from './map-plot.tsx';
 import { PeaksTable } from './peaks-table.tsx';
 import { ResidualsPlot } from './residuals-plot.tsx';
+import { ScaleStatement } from './scale-statement.tsx';
 
 export interface WorkbenchResultsProps {
   run: WorkbenchRun;
   lineoutCounts: Float64Array | null;
   /** Present when the user may pin: adds pins and reruns. */
   onPins?: (pins: Pin[]) => void;
+  /** Present when the user may run: sets the known lines and reruns. */
+  onKnownLines?: (lines: KnownLine[]) => void;
 }
 
 /** Everything one run says: verdict, hypotheses, peaks, and the three plots. */
-export function WorkbenchResults({ run, lineoutCounts, onPins }: WorkbenchResultsProps) {
+export function WorkbenchResults({ run, lineoutCounts, onPins, onKnownLines }: WorkbenchResultsProps) {
   const { result } = run;
   const best = result.hypotheses[0] ?? null;
+  // Runs stored before known lines existed have none in their inputs.
+  const knownLines = run.inputs.knownLines ?? [];
   return (
     <div className="flex flex-col gap-6">
       <AmbiguityBanner result={result} />
+      {result.calibration ? <ScaleStatement calibration={result.calibration} /> : null}
       {result.perFrame && result.perFrame.length > 1 ? (
         <ul className="text-sm text-slate-700" aria-label="Per-frame results">
           {result.perFrame.map((f) => (
@@ -51,6 +58,8 @@ export function WorkbenchResults({ run, lineoutCounts, onPins }: WorkbenchResult
           best={best}
           pins={run.inputs.pins}
           onPin={onPins ? (pin) => onPins([...run.inputs.pins.filter((p) => Math.abs(p.pixel - pin.pixel) >= 1), pin]) : undefined}
+          knownLines={knownLines}
+          onKnownLine={onKnownLines ? (line) => onKnownLines(withKnownLine(knownLines, line)) : undefined}
         />
       </Panel>
       {result.calibration ? (
@@ -61,7 +70,8 @@ export function WorkbenchResults({ run, lineoutCounts, onPins }: WorkbenchResult
           <Panel title="Map with uncertainty band">
             <MapPlot calibration={result.calibration} />
             <p className="mt-2 text-xs text-slate-500">
-              Absolute scale: {result.calibration.absoluteScale === 'anchored' ? 'anchored (edge, known line or pin)' : `driver tolerance only (±${(result.calibration.scaleSigmaRelative * 100).toFixed(2)} %)`} · rms residual{' '}
+              Absolute scale: {result.calibration.absoluteScale === 'anchored' ? `anchored by ${result.calibration.anchors?.length ?? 0} known line(s)` : 'driver tolerance only'} (±
+              {(result.calibration.scaleSigmaRelative * 100).toPrecision(2)} %, 1σ) · rms residual{' '}
               {(result.calibration.residualRmsNm * 1000).toFixed(1)} pm · model {result.calibration.model}
             </p>
           </Panel>
