@@ -129,7 +129,7 @@ export async function createVersion(db: Db, user: SessionUser, instrumentId: str
     if (!run || run.instrumentId !== instrumentId) throw new NotFoundError('No such workbench run on this instrument.');
     const calibration = run.result.calibration;
     if (run.status !== 'unique' || !calibration) {
-      throw new HttpError(400, 'ambiguous', `Workbench run ${run.id} is ${run.status} (${run.result.message}); only a unique result can be saved: pin an order, add a filter edge or widen the range, and run again.`, {
+      throw new HttpError(400, 'ambiguous', `Workbench run ${run.id} is ${run.status} (${run.result.message}); only a unique result can be saved: pin an order, add a known line or a filter whose edge falls in range, or widen the range, and run again.`, {
         status: run.status,
       });
     }
