@@ -2,20 +2,23 @@
  * Debug helper for the evaluation: runs chosen scenarios through calibrate and prints the
  * detected peaks against the simulator's truth and the top hypotheses.
  * Usage: npx tsx tests/eval/debug-one.ts --class ni-vuv-low-orders [--count 312 --seed 2026 --max 3]
+ *        npx tsx tests/eval/debug-one.ts --sim field --class field-ff-odd-clean [--count 260 ...]
+ * (the same scenarios and frame seeds as `npm run eval` for that --sim, --count and --seed).
  */
 import { parseArgs } from 'node:util';
 import { calibrateFrame } from '../../shared/engine/calibrate.ts';
-import { generateScenarios, simulateFrame } from '../../shared/engine/simulate/index.ts';
+import { generateFieldScenarios, generateScenarios, simulateFrame } from '../../shared/engine/simulate/index.ts';
 
-const { values } = parseArgs({ options: { class: { type: 'string', default: '' }, index: { type: 'string', default: '' }, count: { type: 'string', default: '312' }, seed: { type: 'string', default: '2026' }, max: { type: 'string', default: '3' }, only: { type: 'string', default: '' } } });
+const { values } = parseArgs({ options: { class: { type: 'string', default: '' }, index: { type: 'string', default: '' }, count: { type: 'string', default: '' }, sim: { type: 'string', default: 'classic' }, seed: { type: 'string', default: '2026' }, max: { type: 'string', default: '3' }, only: { type: 'string', default: '' } } });
 const SEED = Number(values.seed);
-const scenarios = generateScenarios(Number(values.count), SEED);
+const FIELD = values.sim === 'field';
+const scenarios = FIELD ? generateFieldScenarios(Number(values.count || 260), SEED) : generateScenarios(Number(values.count || 312), SEED);
 let shown = 0;
 for (let i = 0; i < scenarios.length && shown < Number(values.max); i++) {
   const s = scenarios[i];
   if (values.class && s.class !== values.class) continue;
   if (values.index && !values.index.split(',').includes(String(i))) continue;
-  const { frame, truth } = simulateFrame(s, SEED * 7919 + i);
+  const { frame, truth } = simulateFrame(s, FIELD ? SEED * 104_729 + i : SEED * 7919 + i);
   const t0 = performance.now();
   const r = calibrateFrame(frame, { profile: s.profile, driverNm: s.driver.nominalNm, driverTolerancePct: s.driver.tolerancePercent, parity: s.parity, filters: (s.filters ?? []).map((f) => ({ material: f.material, thicknessNm: f.thicknessNm })) });
   const ms = performance.now() - t0;
