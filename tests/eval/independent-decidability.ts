@@ -15,6 +15,7 @@
  * it is a shift of the centre plus a change of the tilt about the new central ray, so it adds
  * no freedom.
  *
+ * Centroid σ are the peaks' own, floored at 0.01 px (CENTROID_FLOOR_PX).
  * Δχ² of a slip = (χ²_slip − χ²_truth) / s², where s² is the truth fit's reduced χ² (floored at
  * 1, so over-stated centroid errors never inflate a margin; and 1 when there are no more lines
  * than free parameters). Decidable when every slip misses by Δχ² ≥ 16 (≈ 4σ, the margin the
@@ -45,6 +46,12 @@ export const MIN_FIRST_ORDER_LINES = 3;
 export const FILTER_RESHAPE_LIMIT = 100;
 /** A peak sits on a true line when it is within this many pixels of it. */
 export const MATCH_TOLERANCE_PX = 1.5;
+/**
+ * Smallest centroid σ believed, px: pixel response and line-shape residuals leave ~0.01 px on
+ * real lines however bright (from memory); without it, three bright lines (no degrees of freedom
+ * to scale by) would call a 0.02 px misfit decisive.
+ */
+export const CENTROID_FLOOR_PX = 0.01;
 /** Free parameters of a labelling fit: λ0, incidence, distance, tilt, centre. */
 const FREE_PARAMETERS = 5;
 /** Residual (in σ) given to a line the model cannot place on the detector plane. */
@@ -232,7 +239,7 @@ export function independentDecidability(peaks: readonly PeakPosition[], truth: D
   const matched = matchPeaksToLines(peaks, truth.lines);
   const points: FitPoint[] = [];
   matched.forEach((line, i) => {
-    if (line && line.diffractionOrder === 1) points.push({ pixel: peaks[i].pixel, sigma: Math.max(peaks[i].pixelSigma, 1e-3), harmonic: line.harmonic });
+    if (line && line.diffractionOrder === 1) points.push({ pixel: peaks[i].pixel, sigma: Math.max(peaks[i].pixelSigma, CENTROID_FLOOR_PX), harmonic: line.harmonic });
   });
   const anchors = truth.anchors ?? [];
   const base = { firstOrderLines: points.length, truthChiSquare: Number.NaN, scale: Number.NaN, slips: [] as SlipVerdict[] };
