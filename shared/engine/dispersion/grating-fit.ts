@@ -3,11 +3,11 @@
  * (grating.ts) puts each line where it was seen.
  *
  * Residuals are in pixels: (observed pixel − wavelengthToPixel(g, λ, m)) / pixelSigma. The
- * minimiser is our own Levenberg–Marquardt (Marquardt's diagonal scaling; each step solved by
- * Householder QR on the augmented system [J; √μ·D] rather than the normal equations) with a
- * central-difference Jacobian. We use it instead of ml-levenberg-marquardt because that library
- * inverts JᵀJ, offers only hard box bounds and a fixed damping schedule; with ≤ 5 parameters our
- * loop is short and lets us report the Jacobian at the solution for the covariance.
+ * minimiser is the engine's Levenberg–Marquardt (fit/levenberg-marquardt.ts: Marquardt's diagonal
+ * scaling, each step from the QR of the augmented system [J; √μ·D] rather than the normal
+ * equations, MINPACK-style stopping) with a central-difference Jacobian, which it also returns at
+ * the solution for the covariance and the leverages. Not ml-levenberg-marquardt: that library
+ * inverts JᵀJ, offers only hard box bounds and a fixed damping schedule.
  *
  * Soft bounds: outside [lo, hi] a parameter pays a penalty residual excess / (1e-6·(hi − lo)), a
  * steep quadratic wall that stays differentiable for LM; penalties never enter the reported χ²,
@@ -27,7 +27,8 @@ import { EngineError } from '../errors.ts';
 import { pixelToWavelengthNm, wavelengthToPixel } from '../grating.ts';
 import type { Calibration, GratingGeometry } from '../types.ts';
 import { type GratingParameter, GRATING_PARAMETERS, parameterStep, withParameters } from './evaluate.ts';
-import { householderQr, leverages, qrSolve, unscaledCovariance } from './householder.ts';
+import { levenbergMarquardt, type LevenbergMarquardtResult } from '../fit/levenberg-marquardt.ts';
+import { householderQr, leverages } from './householder.ts';
 import { conditionOfQr } from './polynomial-fit.ts';
 
 export interface GratingMapPoint {
@@ -105,154 +106,58 @@ interface Problem {
   bounds: Array<[number, number] | undefined>;
 }
 
-function pixelResiduals(problem: Problem, theta: ArrayLike<number>, skip = -1): Float64Array {
+/** Weighted pixel residuals at theta into out[0, n) (0 for the skipped point). */
+function pixelResiduals(problem: Problem, theta: ArrayLike<number>, skip: number, out: Float64Array): void {
   const g = withParameters(problem.start, problem.names, theta);
   const { points } = problem;
-  const out = new Float64Array(points.length);
   for (let i = 0; i < points.length; i++) {
-    if (i === skip) continue;
+    if (i === skip) {
+      out[i] = 0;
+      continue;
+    }
     const pt = points[i];
     const predicted = wavelengthToPixel(g, pt.wavelengthNm, pt.diffractionOrder);
     out[i] = Number.isFinite(predicted) ? (pt.pixel - predicted) / pt.pixelSigma : NAN_RESIDUAL;
   }
-  return out;
 }
 
-function penalties(problem: Problem, theta: ArrayLike<number>): Float64Array {
-  const out = new Float64Array(problem.names.length);
+/** Soft-bound penalties into out[offset, offset + k). */
+function penalties(problem: Problem, theta: ArrayLike<number>, out: Float64Array, offset: number): void {
   problem.bounds.forEach((b, j) => {
-    if (!b) return;
-    const width = Math.max(1e-15, 1e-6 * (b[1] - b[0]));
-    if (theta[j] < b[0]) out[j] = (b[0] - theta[j]) / width;
-    else if (theta[j] > b[1]) out[j] = (theta[j] - b[1]) / width;
-  });
-  return out;
-}
-
-function cost(problem: Problem, theta: ArrayLike<number>, skip: number): number {
-  let s = 0;
-  for (const r of pixelResiduals(problem, theta, skip)) s += r * r;
-  for (const r of penalties(problem, theta)) s += r * r;
-  return s;
-}
-
-/** Column-major Jacobian of [pixel residuals; penalties] by central differences. */
-function jacobian(problem: Problem, theta: Float64Array, skip: number, withPenalties: boolean): { a: Float64Array; rows: number } {
-  const n = problem.points.length;
-  const k = theta.length;
-  const rows = withPenalties ? n + k : n;
-  const a = new Float64Array(rows * k);
-  for (let j = 0; j < k; j++) {
-    const h = parameterStep(theta[j]);
-    const up = Float64Array.from(theta);
-    const down = Float64Array.from(theta);
-    up[j] += h;
-    down[j] -= h;
-    const rUp = pixelResiduals(problem, up, skip);
-    const rDown = pixelResiduals(problem, down, skip);
-    for (let i = 0; i < n; i++) a[j * rows + i] = (rUp[i] - rDown[i]) / (2 * h);
-    if (withPenalties) {
-      const pUp = penalties(problem, up);
-      const pDown = penalties(problem, down);
-      for (let i = 0; i < k; i++) a[j * rows + n + i] = (pUp[i] - pDown[i]) / (2 * h);
+    let v = 0;
+    if (b) {
+      const width = Math.max(1e-15, 1e-6 * (b[1] - b[0]));
+      if (theta[j] < b[0]) v = (b[0] - theta[j]) / width;
+      else if (theta[j] > b[1]) v = (theta[j] - b[1]) / width;
     }
-  }
-  return { a, rows };
+    out[offset + j] = v;
+  });
 }
 
 /**
- * Stopping rule, after MINPACK lmder (Moré, Garbow & Hillstrom, "User Guide for MINPACK-1",
- * ANL-80-74, 1980, §2.3 and lmder's info = 1, 2): with actred = 1 − χ²_trial/χ² and the linear
- * model's predicted reduction prered = (‖Jδ‖² + 2μ‖Dδ‖²)/χ², stop when |actred| ≤ FTOL and
- * prered ≤ FTOL (then ‖Jδ‖ ≤ √(FTOL·χ²); with weighted residuals ‖Jδ‖ is the step's length in
- * standard errors, |δ_j| ≤ ‖Jδ‖·σ_j by Cauchy–Schwarz, so ~1e-5·√χ² of an error bar), tested on
- * rejected trials too, so that a fit already at its
- * optimum stops after one trial instead of raising μ ~30 times; or when a step, accepted or not,
- * is tiny against the parameters, ‖Dδ‖ ≤ XTOL·‖Dθ‖ (D = Jacobian column norms; as a standard
- * error σ_j ≥ 1/D_j, each |δ_j| ≤ XTOL·‖Dθ‖·σ_j), and gains ≤ FTOL; or when μ passes MU_CAP
- * after consecutive rejections (no decrease left at this precision, MINPACK's info = 6/7; on the
- * bench frames χ² itself is only good to a few 1e-10, so a trial or two at the optimum may be
- * rejected on rounding before |actred| ≤ FTOL holds).
+ * Stopping (the solver's MINPACK rules): FTOL = 1e-10 on χ², so ‖Jδ‖ ≤ √(FTOL·χ²) at the end;
+ * with weighted residuals ‖Jδ‖ is the step's length in standard errors and |δ_j| ≤ ‖Jδ‖·σ_j by
+ * Cauchy–Schwarz, ~1e-5·√χ² of an error bar. On the bench frames χ² itself is only good to a few
+ * 1e-10, so a trial or two at the optimum may be rejected on rounding before that holds, and the
+ * solver's μ cap ends such a run.
  */
 const FTOL = 1e-10;
 const XTOL = 1e-10;
-const MU_CAP = 1e16;
 
-/** Levenberg–Marquardt from theta0; returns the best parameters and the iteration count. */
-interface LmResult {
-  theta: Float64Array;
-  cost: number;
-  iterations: number;
-  /** Passes of the forward model over the points (Jacobian columns count two). */
-  evaluations: number;
-}
-
-function levenbergMarquardt(problem: Problem, theta0: Float64Array, skip: number, maxIterations: number): LmResult {
-  const k = theta0.length;
+/** One Levenberg–Marquardt run from theta0 on [pixel residuals; penalties], point `skip` left out (−1: none). */
+function solve(problem: Problem, theta0: Float64Array, skip: number, maxIterations: number, covariance: boolean): LevenbergMarquardtResult {
   const n = problem.points.length;
-  let theta = Float64Array.from(theta0);
-  let current = cost(problem, theta, skip);
-  let mu = 1e-3;
-  let iterations = 0;
-  let evaluations = 1;
-  const done = (): LmResult => ({ theta, cost: current, iterations, evaluations });
-  while (iterations < maxIterations) {
-    iterations++;
-    const { a, rows } = jacobian(problem, theta, skip, true);
-    evaluations += 2 * k + 1;
-    const r = new Float64Array(rows);
-    r.set(pixelResiduals(problem, theta, skip));
-    r.set(penalties(problem, theta), n);
-    // Marquardt scaling: D = diag of the column norms of J.
-    const d = new Float64Array(k);
-    let xNorm = 0;
-    for (let j = 0; j < k; j++) {
-      let s = 0;
-      for (let i = 0; i < rows; i++) s += a[j * rows + i] ** 2;
-      d[j] = Math.sqrt(s) || 1;
-      xNorm += (d[j] * theta[j]) ** 2;
-    }
-    xNorm = Math.sqrt(xNorm);
-    const rhs = new Float64Array(rows + k);
-    for (let i = 0; i < rows; i++) rhs[i] = -r[i];
-    for (;;) {
-      // Augmented least squares: [J; √μ D] δ ≈ [−r; 0]; residual r = obs − model, so J here is ∂r/∂θ.
-      const aug = new Float64Array((rows + k) * k);
-      for (let j = 0; j < k; j++) {
-        aug.set(a.subarray(j * rows, (j + 1) * rows), j * (rows + k));
-        aug[j * (rows + k) + rows + j] = Math.sqrt(mu) * d[j];
-      }
-      const delta = qrSolve(householderQr({ rows: rows + k, cols: k, a: aug }), rhs);
-      const trial = Float64Array.from(theta, (v, j) => v + delta[j]);
-      const trialCost = cost(problem, trial, skip);
-      evaluations++;
-      let jDeltaSq = 0;
-      for (let i = 0; i < rows; i++) {
-        let s = 0;
-        for (let j = 0; j < k; j++) s += a[j * rows + i] * delta[j];
-        jDeltaSq += s * s;
-      }
-      let dDeltaSq = 0;
-      for (let j = 0; j < k; j++) dDeltaSq += (d[j] * delta[j]) ** 2;
-      const actred = current > 0 && Number.isFinite(trialCost) ? 1 - trialCost / current : current > 0 ? -1 : 0;
-      const prered = current > 0 ? (jDeltaSq + 2 * mu * dDeltaSq) / current : 0;
-      const accepted = trialCost < current;
-      if (accepted) {
-        theta = trial;
-        current = trialCost;
-      }
-      const ratio = prered > 0 ? actred / prered : 0;
-      if (Math.abs(actred) <= FTOL && prered <= FTOL && ratio <= 2) return done();
-      if (actred <= FTOL && Math.sqrt(dDeltaSq) <= XTOL * xNorm) return done();
-      if (accepted) {
-        mu = Math.max(mu / 3, 1e-12);
-        break;
-      }
-      mu *= 4;
-      if (mu > MU_CAP) return done();
-    }
-  }
-  return done();
+  return levenbergMarquardt(
+    {
+      residualCount: n + problem.names.length,
+      residuals(theta, out) {
+        pixelResiduals(problem, theta, skip, out);
+        penalties(problem, theta, out, n);
+      },
+    },
+    theta0,
+    { difference: 'central', steps: (_j, value) => parameterStep(value), maxIterations, ftol: FTOL, xtol: XTOL, covariance, keepJacobian: covariance, covarianceRows: n },
+  );
 }
 
 function resolve(points: readonly GratingMapPoint[], start: GratingGeometry, options: GratingMapOptions): Problem {
@@ -298,38 +203,42 @@ export function fitGratingMap(points: readonly GratingMapPoint[], start: Grating
     const sign = s % 2 === 0 ? 1 : -1;
     starts.push(Float64Array.from(names, (name, j) => start[name] + sign * (j % 2 === 0 ? 1 : -1) * magnitude * RESTART_SCALE[name](start)));
   }
-  let best: LmResult = { theta: theta0, cost: Number.POSITIVE_INFINITY, iterations: 0, evaluations: 0 };
+  let best: LevenbergMarquardtResult | null = null;
   let bestStart = 0;
   let totalIterations = 0;
   let evaluations = 0;
   starts.forEach((t, s) => {
-    const result = levenbergMarquardt(problem, t, -1, maxIterations);
+    const result = solve(problem, t, -1, maxIterations, true);
     totalIterations += result.iterations;
-    evaluations += result.evaluations;
-    if (result.cost < best.cost) {
+    evaluations += result.residualEvaluations;
+    if (result.chiSquare < (best?.chiSquare ?? Number.POSITIVE_INFINITY)) {
       best = result;
       bestStart = s;
     }
   });
-  if (!Number.isFinite(best.cost)) throw new EngineError('fit_failed', 'The grating fit found no geometry that puts the lines on the detector.');
-  const theta = best.theta;
+  const found = best as LevenbergMarquardtResult | null;
+  if (!found?.jacobian) throw new EngineError('fit_failed', 'The grating fit found no geometry that puts the lines on the detector.');
+  const theta = found.parameters;
   const geometry = withParameters(start, names, theta);
 
-  const rw = pixelResiduals(problem, theta);
+  const rw = found.residuals.subarray(0, n);
   if (rw.some((v) => Math.abs(v) >= NAN_RESIDUAL)) throw new EngineError('fit_failed', 'At the best geometry some lines do not reach the detector plane.');
   let chiSquare = 0;
   for (const r of rw) chiSquare += r * r;
   const dof = n - k;
   const reducedChiSquare = chiSquare / dof;
-  // One Jacobian at the solution, with the penalty rows: the leave-one-out shifts must respect an
-  // active soft bound as a refit would; the covariance and condition use the data rows only.
-  const { a: aPen, rows: rowsPen } = jacobian(problem, theta, -1, true);
+  // The solver's Jacobian at the solution has the penalty rows: the leave-one-out shifts must
+  // respect an active soft bound as a refit would; the covariance (the solver's, over the data
+  // rows only) and the condition number ignore them.
+  const rowsPen = n + k;
+  const aPen = found.jacobian;
   const a = new Float64Array(n * k);
   for (let j = 0; j < k; j++) a.set(aPen.subarray(j * rowsPen, j * rowsPen + n), j * n);
-  const qr = householderQr({ rows: n, cols: k, a });
-  const conditionNumber = conditionOfQr(qr);
+  const conditionNumber = conditionOfQr(householderQr({ rows: n, cols: k, a }));
+  if (!found.covariance) throw new EngineError('fit_failed', `The grating fit's free parameters (${names.join(', ')}) are degenerate at the solution: no covariance can be stated.`);
   const inflate = Math.max(1, reducedChiSquare);
-  const covariance = unscaledCovariance(qr).map((row) => row.map((v) => v * inflate));
+  const unscaled = found.covariance;
+  const covariance = Array.from({ length: k }, (_, i) => Array.from({ length: k }, (_, j) => unscaled[i * k + j] * inflate));
 
   const residualsPx: number[] = [];
   const residualsNm: number[] = [];
@@ -352,9 +261,9 @@ export function fitGratingMap(points: readonly GratingMapPoint[], start: Grating
     const denom = 1 - leverage[i];
     // High leverage: the point pulls the fit hard and the linearisation is weakest, so refit.
     if (exactAll || !(leverage[i] <= HIGH_LEVERAGE)) {
-      const loo = levenbergMarquardt(problem, theta, i, maxIterations);
+      const loo = solve(problem, theta, i, maxIterations, false);
       leaveOneOutRefits++;
-      const g = withParameters(start, names, loo.theta);
+      const g = withParameters(start, names, loo.parameters);
       leaveOneOutResidualsPx.push(pt.pixel - wavelengthToPixel(g, pt.wavelengthNm, pt.diffractionOrder));
       leaveOneOutResidualsNm.push(pt.wavelengthNm - pixelToWavelengthNm(g, pt.pixel, pt.diffractionOrder));
       return;
