@@ -68,7 +68,10 @@ export interface CalibrateArgs {
   page?: number;
   profile: unknown;
   driverNm: number;
+  /** 1σ of the measured driver wavelength, percent. */
   driverTolerancePct?: number;
+  /** Ionisation blue-shift allowance below it, percent. */
+  blueShiftPct?: number;
   parity: Parity;
   filters: string[];
   pins: { pixel: number; harmonic: number }[];
@@ -92,6 +95,7 @@ export async function runCalibrate(args: CalibrateArgs) {
     profile,
     driverNm: args.driverNm,
     driverTolerancePct: args.driverTolerancePct,
+    blueShiftPct: args.blueShiftPct,
     parity: args.parity,
     filters: args.filters,
     pins: args.pins,

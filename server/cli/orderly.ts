@@ -12,7 +12,7 @@ import { FlagValueError, runCalibrate, runApply, type CliFailure } from './comma
 import { formatApplyTable, formatCalibrateTable } from './tables.ts';
 
 const USAGE = `usage:
-  orderly calibrate FRAME --profile PROFILE.json --driver-nm N [--driver-tolerance-pct P]
+  orderly calibrate FRAME --profile PROFILE.json --driver-nm N [--driver-tolerance-pct SIGMA] [--blue-shift-pct B]
       [--parity odd|all] [--filters Al,Zr] [--dark DARK] [--page K] [--pin PIXEL=Q ...]
       [--line PIXEL=ENERGY_EV[@LABEL] ...] [--signal START:END] [--background START:END ...]
       [--model auto|grating|poly:N] [--json]
@@ -117,6 +117,7 @@ async function calibrateCommand(args: string[], json: boolean): Promise<number> 
     profile: { type: 'string' },
     'driver-nm': { type: 'string' },
     'driver-tolerance-pct': { type: 'string' },
+    'blue-shift-pct': { type: 'string' },
     parity: { type: 'string' },
     filters: { type: 'string' },
     dark: { type: 'string' },
@@ -151,6 +152,7 @@ async function calibrateCommand(args: string[], json: boolean): Promise<number> 
     profile: await readJsonFile(values.profile, 'profile'),
     driverNm,
     driverTolerancePct: parseNumber(values['driver-tolerance-pct'] as string | undefined, '--driver-tolerance-pct'),
+    blueShiftPct: parseNumber(values['blue-shift-pct'] as string | undefined, '--blue-shift-pct'),
     parity,
     filters: typeof values.filters === 'string' ? values.filters.split(',').map((s: string) => s.trim()).filter(Boolean) : [],
     pins,

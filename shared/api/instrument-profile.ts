@@ -29,6 +29,11 @@ export const instrumentProfileSchema = z.object({
     .gt(-90, { message: 'detectorAngleDeg must be between -90 and 90 degrees' })
     .lt(90, { message: 'detectorAngleDeg must be between -90 and 90 degrees' })
     .optional(),
+  /** Camera tilt from square to the central ray, degrees; positive: the long-wavelength end farther from the grating. */
+  detectorTiltDeg: finite('detectorTiltDeg')
+    .gt(-45, { message: 'detectorTiltDeg must be between -45 and 45 degrees' })
+    .lt(45, { message: 'detectorTiltDeg must be between -45 and 45 degrees' })
+    .optional(),
   pixelCount: z
     .number({ error: 'pixelCount must be a number' })
     .int({ message: 'pixelCount must be a whole number' })

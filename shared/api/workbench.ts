@@ -43,7 +43,10 @@ export const workbenchRunSchema = z.object({
     .max(8, { message: 'at most 8 frames per run' }),
   darkFrameId: z.uuid({ error: 'darkFrameId must be a frame UUID' }).optional(),
   driverNm: z.number({ error: 'driverNm must be a number' }).positive({ message: 'driverNm must be positive' }).max(100_000),
-  driverTolerancePct: z.number({ error: 'driverTolerancePct must be a number' }).positive().max(20, { message: 'driverTolerancePct must be at most 20' }).default(1),
+  /** 1σ of the measured driver wavelength, percent. */
+  driverTolerancePct: z.number({ error: 'driverTolerancePct must be a number' }).positive({ message: 'driverTolerancePct must be positive' }).max(5, { message: 'driverTolerancePct (1σ) must be at most 5' }).default(0.5),
+  /** Ionisation blue-shift allowance below the measured driver, percent. */
+  blueShiftPct: z.number({ error: 'blueShiftPct must be a number' }).min(0, { message: 'blueShiftPct must be 0 or more' }).max(5, { message: 'blueShiftPct must be at most 5' }).default(1),
   parity: z.enum(parities, { error: 'parity must be "odd" or "all"' }).default('odd'),
   /** Filter foils, engine notation: "Al" or "Al:200" (200 nm). */
   filters: z.array(z.string().trim().min(1).max(50)).max(10).default([]),

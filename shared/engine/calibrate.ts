@@ -3,7 +3,7 @@
  * as the `orderly calibrate --json` object. Never throws on bad data: an EngineError becomes a
  * `failed` result with its message.
  */
-import { assignOrders, unanchoredScaleSigma, type AssignResult, type FilterSpec, type Hypothesis } from './assign/index.ts';
+import { assignOrders, DEFAULT_BLUE_SHIFT_PCT, DEFAULT_DRIVER_SIGMA_PCT, unanchoredScaleSigma, type AssignResult, type FilterSpec, type Hypothesis } from './assign/index.ts';
 import { HC_EV_NM } from './constants.ts';
 import { FIT_FLOOR_PX } from './assign/verdict.ts';
 import { evaluateCalibration, fitGratingMap, fitPolynomialMap, type GratingParameter } from './dispersion/index.ts';
@@ -19,8 +19,10 @@ export interface CalibrateOptions {
   profile: InstrumentProfile;
   /** Nominal driver wavelength, nm. */
   driverNm: number;
-  /** Driver tolerance, percent. @default 1 */
+  /** 1σ of the measured driver wavelength, percent (symmetric). @default 0.5 */
   driverTolerancePct?: number;
+  /** Largest ionisation blue shift of the harmonics below the measured driver, percent (an assumption). @default 1 */
+  blueShiftPct?: number;
   /** @default 'odd' */
   parity?: Parity;
   /** Filters in the beam. @default [] */
@@ -123,9 +125,12 @@ function summarise(h: Hypothesis, rank: number): HypothesisSummary {
   };
 }
 
-/** The documented default, given to the assigner explicitly so that the unanchored σ below is the one it used. */
+/** The documented defaults, given to the assigner explicitly so that the unanchored σ below is the one it used. */
 function driverTolerancePct(options: CalibrateOptions): number {
-  return options.driverTolerancePct ?? 1;
+  return options.driverTolerancePct ?? DEFAULT_DRIVER_SIGMA_PCT;
+}
+function blueShiftPct(options: CalibrateOptions): number {
+  return options.blueShiftPct ?? DEFAULT_BLUE_SHIFT_PCT;
 }
 
 /** Geometry entries to free in the final fit: as many as the points support, the best-determined first. */
@@ -278,7 +283,7 @@ function buildCalibration(
     absoluteScale: assignment.anchored ? 'anchored' : 'driver-tolerance',
     // Only what the assigner says anchored the scale is listed as having done so.
     ...(assignment.anchored && known.anchors.length > 0 ? { anchors: known.anchors } : {}),
-    unanchoredScaleSigmaRelative: unanchoredScaleSigma(driverTolerancePct(options)),
+    unanchoredScaleSigmaRelative: unanchoredScaleSigma(driverTolerancePct(options), blueShiftPct(options)),
     scaleSigmaRelative: assignment.scaleSigmaRelative,
     points,
     filters: (options.filters ?? []).map((f) => (typeof f === 'string' ? f : `${f.material}${f.thicknessNm ? `:${f.thicknessNm}` : ''}`)),
@@ -310,6 +315,7 @@ export function calibrateFrame(frame: Frame, options: CalibrateOptions): Calibra
       pixelCount,
       driverNm: options.driverNm,
       driverTolerancePct: driverTolerancePct(options),
+      blueShiftPct: blueShiftPct(options),
       parity: options.parity ?? 'odd',
       filters: options.filters,
       pins: options.pins,

@@ -93,7 +93,7 @@ export function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
 
   const knownPoints: ModelPoint[] = [];
   // Peaks that are known lines: in the fit as fixed-wavelength points, kept out of the harmonic search.
-  const knownPeaks = new Map<number, string>();
+  const knownPeaks = new Map<number, { label: string; wavelengthNm: number; point: number }>();
   for (const k of input.knownLines ?? []) {
     if (!(Number.isFinite(k.wavelengthNm) && k.wavelengthNm > 0)) return 'A known line needs a positive wavelength in nm.';
     if (k.pixel !== undefined && Number.isFinite(k.pixel)) {
@@ -102,7 +102,7 @@ export function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
       searchPeaks.forEach((pk, i) => {
         if (Math.abs(pk.pixel - (k.pixel as number)) <= Math.max(1.5, pk.fwhmPx) && (nearest < 0 || Math.abs(pk.pixel - (k.pixel as number)) < Math.abs(searchPeaks[nearest].pixel - (k.pixel as number)))) nearest = i;
       });
-      if (nearest >= 0) knownPeaks.set(nearest, k.label ?? `known line ${k.wavelengthNm.toFixed(4)} nm`);
+      if (nearest >= 0) knownPeaks.set(nearest, { label: k.label ?? `known line ${k.wavelengthNm.toFixed(4)} nm`, wavelengthNm: k.wavelengthNm, point: knownPoints.length - 1 });
     }
   }
   const pins = new Map<number, number>();

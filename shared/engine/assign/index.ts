@@ -30,6 +30,7 @@ import {
 import { totalScore } from './score.ts';
 import { refit, type SearchContext } from './search.ts';
 import { prepare } from './context.ts';
+import { allowedHarmonic } from './search.ts';
 import { contradicts, labelKey, type Candidate } from './labelling.ts';
 import { driverPriorMoments } from './priors.ts';
 import { labellingStarts, shiftedRivals } from './rivals.ts';
@@ -38,7 +39,7 @@ import type { AssignInput, AssignResult, Hypothesis, PeakLabel } from './types.t
 import { decideVerdict, UNIQUE_MARGIN } from './verdict.ts';
 
 export type { AssignInput, AssignResult, Hypothesis, PeakLabel, RealignmentRanges, FilterSpec, VerdictGate } from './types.ts';
-export { DEFAULT_RANGES, unanchoredScaleSigma } from './priors.ts';
+export { DEFAULT_BLUE_SHIFT_PCT, DEFAULT_DRIVER_SIGMA_PCT, DEFAULT_RANGES, unanchoredScaleSigma } from './priors.ts';
 export { UNIQUE_MARGIN } from './verdict.ts';
 
 function failed(message: string, notes: string[] = []): AssignResult {
@@ -64,7 +65,16 @@ function toHypothesis(ctx: SearchContext, c: Candidate, s2: number, bestScore: n
   let count = 0;
   const residualByPeak = new Map<number, number>();
   let k = 0;
+  // The fit's points: the labelled peaks in order, then the known lines (a known line relabelled
+  // as the harmonic it is keeps its known point's residual).
+  let labelledPoints = 0;
+  for (let i = 0; i < c.harmonic.length; i++) if (c.harmonic[i] > 0 && !ctx.knownPeaks.has(i)) labelledPoints++;
   for (let i = 0; i < c.harmonic.length; i++) {
+    const known = ctx.knownPeaks.get(i);
+    if (known !== undefined) {
+      residualByPeak.set(i, c.fit.residualsPx[labelledPoints + known.point]);
+      continue;
+    }
     if (c.harmonic[i] > 0) {
       residualByPeak.set(i, c.fit.residualsPx[k]);
       sumSq += c.fit.residualsPx[k] ** 2;
@@ -83,7 +93,7 @@ function toHypothesis(ctx: SearchContext, c: Candidate, s2: number, bestScore: n
     const blend = c.blends.get(i);
     if (blend) label.blend = blend;
     const known = ctx.knownPeaks.get(i);
-    if (known !== undefined) label.knownLine = known;
+    if (known !== undefined) label.knownLine = known.label;
     labels[original[i]] = label;
     if (c.harmonic[i] > 0 && c.order[i] === 1) {
       first = Math.min(first, c.harmonic[i]);
@@ -176,6 +186,26 @@ export function assignOrders(peaks: Peak[], input: AssignInput): AssignResult {
   }
 }
 
+/**
+ * A known line that is a harmonic measured elsewhere (its wavelength λ0/q for an allowed q, within
+ * 3σ of the fitted λ0) keeps its order label; an emission or absorption line of another source
+ * does not fit any q and stays a known line only.
+ */
+function labelKnownHarmonics(ctx: SearchContext, best: Candidate): void {
+  const lambda0 = best.fit.parameters[P_DRIVER];
+  const j = best.fit.freeIndices.indexOf(P_DRIVER);
+  const f = best.fit.freeIndices.length;
+  const sigmaRel = j >= 0 && best.fit.covariance ? Math.sqrt(Math.max(0, best.fit.covariance[j * f + j])) / lambda0 : 0;
+  for (const [i, known] of ctx.knownPeaks) {
+    const q = Math.round(lambda0 / known.wavelengthNm);
+    if (!allowedHarmonic(ctx.parity, q) || best.harmonic.some((h, k) => k !== i && h === q && best.order[k] === 1)) continue;
+    if (Math.abs((q * known.wavelengthNm) / lambda0 - 1) <= Math.max(3 * sigmaRel, 1e-6)) {
+      best.harmonic[i] = q;
+      best.order[i] = 1;
+    }
+  }
+}
+
 function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
   const prepared = prepare(peaks, input);
   if (typeof prepared === 'string') return failed(prepared);
@@ -206,6 +236,7 @@ function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
   const s2 = Math.max(1, rawBest.raw.position / rawBest.raw.degreesOfFreedom);
   viable.sort((a, b) => totalScore(a.raw, s2) - totalScore(b.raw, s2));
   const best = viable[0];
+  labelKnownHarmonics(ctx, best);
   const bestScore = totalScore(best.raw, s2);
   const reducedChi = best.raw.position / best.raw.degreesOfFreedom;
   const rivals = viable.filter((c) => c !== best && contradicts(c, best));

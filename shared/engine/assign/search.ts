@@ -56,7 +56,8 @@ export interface SearchContext {
   /** Known-wavelength points always in the fit. */
   knownPoints: ModelPoint[];
   /** Peaks that are known lines (index → label): explained, never given a harmonic label. */
-  knownPeaks: Map<number, string>;
+  /** Peaks that are known lines: label, wavelength and index of their point in `knownPoints`. */
+  knownPeaks: Map<number, { label: string; wavelengthNm: number; point: number }>;
   /** Filter stack transmission at a photon energy. */
   transmission: (energyEv: number) => number;
   /** peak index → pinned harmonic (m = 1). */

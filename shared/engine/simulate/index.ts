@@ -12,3 +12,4 @@ export { encodeTiff, encodePng16, encodeFits, type TiffEncodeOptions } from './e
 export { filterStackTransmission, referenceFilterTransmission, steepestEdgeEv, type FilterTransmissionFn } from './filters.ts';
 export { createRandom, mixSeed, Random } from './random.ts';
 export { resolveScenario, type ResolvedScenario } from './options.ts';
+export { driverPriorOf, type DriverPriorInput } from './driver-prior.ts';

@@ -25,6 +25,7 @@ function toRunInput(frameIds: string[], s: WorkbenchSettings): WorkbenchRunInput
     darkFrameId: s.darkFrameId || undefined,
     driverNm: s.driverNm,
     driverTolerancePct: s.driverTolerancePct,
+    blueShiftPct: s.blueShiftPct,
     parity: s.parity,
     filters: s.filters,
     pins: s.pins,
@@ -53,7 +54,7 @@ export function WorkbenchRoute() {
   useEffect(() => {
     if (settings || !first.data) return;
     const f = first.data;
-    setSettings({ driverNm: f.driverNm ?? 800, driverTolerancePct: 1, parity: f.parity ?? 'odd', filters: f.filters, model: 'auto', pins: [], knownLines: [], darkFrameId: '' });
+    setSettings({ driverNm: f.driverNm ?? 800, driverTolerancePct: 0.5, blueShiftPct: 1, parity: f.parity ?? 'odd', filters: f.filters, model: 'auto', pins: [], knownLines: [], darkFrameId: '' });
   }, [first.data, settings]);
 
   const decoded = useDecodedFrame(first.data ? first.data.id : null, first.data?.page ?? 0);

@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { encodeTiff, generateScenarios, simulateFrame } from '../../../shared/engine/simulate/index.ts';
+import { driverPriorOf, encodeTiff, generateScenarios, simulateFrame } from '../../../shared/engine/simulate/index.ts';
 
 const run = promisify(execFile);
 const CLI = path.resolve('bin/orderly.mjs');
@@ -29,6 +29,8 @@ describe('orderly command line', () => {
   let framePath: string;
   let profilePath: string;
   let driverNm: number;
+  /** What the scenario's lab would say of its driver: 1σ and blue-shift allowance (simulate/driver-prior.ts). */
+  let driverFlags: string[];
   let pixelCount: number;
 
   beforeAll(() => {
@@ -38,14 +40,16 @@ describe('orderly command line', () => {
     framePath = path.join(dir, 'frame.tif');
     writeFileSync(framePath, encodeTiff(frame, { bitsPerSample: 16, sampleFormat: 'uint' }));
     profilePath = path.join(dir, 'profile.json');
-    writeFileSync(profilePath, JSON.stringify({ ...scenario.profile, someVendorField: 'ignored' }));
+    writeFileSync(profilePath, JSON.stringify({ ...scenario.profile, detectorTiltDeg: 0, someVendorField: "ignored" }));
     driverNm = scenario.driver.nominalNm;
+    const prior = driverPriorOf(scenario.driver);
+    driverFlags = ['--driver-tolerance-pct', String(prior.driverTolerancePct), '--blue-shift-pct', String(prior.blueShiftPct)];
     pixelCount = 1024;
   });
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
   it('calibrates a frame and prints the contract JSON, then applies it', async () => {
-    const cal = await orderly(['calibrate', framePath, '--profile', profilePath, '--driver-nm', String(driverNm), '--json']);
+    const cal = await orderly(['calibrate', framePath, '--profile', profilePath, '--driver-nm', String(driverNm), ...driverFlags, '--json']);
     const result = JSON.parse(cal.stdout);
     expect(['unique', 'ambiguous', 'failed']).toContain(result.status);
     expect(typeof result.message).toBe('string');
@@ -76,7 +80,7 @@ describe('orderly command line', () => {
   it('reports a failing frame in a batch and goes on with the rest', async () => {
     const bad = path.join(dir, 'bad.tif');
     writeFileSync(bad, 'this is not a frame');
-    const cal = await orderly(['calibrate', framePath, '--profile', profilePath, '--driver-nm', String(driverNm), '--json']);
+    const cal = await orderly(['calibrate', framePath, '--profile', profilePath, '--driver-nm', String(driverNm), ...driverFlags, '--json']);
     const calPath = path.join(dir, 'cal2.json');
     writeFileSync(calPath, cal.stdout);
     const applied = await orderly(['apply', bad, framePath, '--calibration', calPath, '--json']);

@@ -14,6 +14,7 @@ const valid: InstrumentFormValues = {
   wavelengthIncreasesWithPixel: 'false',
   detectorCenterPixel: '',
   detectorAngleDeg: '',
+  detectorTiltDeg: '',
   pixelCount: '2048',
   notes: '',
 };

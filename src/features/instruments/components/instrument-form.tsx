@@ -22,6 +22,7 @@ type NumberField =
   | 'pixelPitchUm'
   | 'detectorCenterPixel'
   | 'detectorAngleDeg'
+  | 'detectorTiltDeg'
   | 'pixelCount';
 
 const numberFields: { key: NumberField; label: string; hint: string; optional?: boolean }[] = [
@@ -32,6 +33,12 @@ const numberFields: { key: NumberField; label: string; hint: string; optional?: 
   { key: 'pixelCount', label: 'Spectral pixel count', hint: 'pixels along the spectral axis' },
   { key: 'detectorCenterPixel', label: 'Detector centre pixel', hint: 'optional: where the nominal diffraction angle lands', optional: true },
   { key: 'detectorAngleDeg', label: 'Diffraction angle at centre pixel (deg)', hint: 'optional', optional: true },
+  {
+    key: 'detectorTiltDeg',
+    label: 'Camera tilt (deg)',
+    hint: 'optional: from square to the central ray, + when the long-wavelength end is farther from the grating; flat-field cameras sit near 90° − β',
+    optional: true,
+  },
 ];
 
 /**

@@ -18,6 +18,7 @@ export interface InstrumentFormValues {
   wavelengthIncreasesWithPixel: string;
   detectorCenterPixel: string;
   detectorAngleDeg: string;
+  detectorTiltDeg: string;
   pixelCount: string;
   notes: string;
 }
@@ -47,6 +48,7 @@ export function toFormValues(instrument?: Pick<Instrument, 'name' | 'description
     wavelengthIncreasesWithPixel: p ? String(p.wavelengthIncreasesWithPixel) : 'true',
     detectorCenterPixel: text(p?.detectorCenterPixel),
     detectorAngleDeg: text(p?.detectorAngleDeg),
+    detectorTiltDeg: text(p?.detectorTiltDeg),
     pixelCount: text(p?.pixelCount),
     notes: p?.notes ?? '',
   };
@@ -75,6 +77,7 @@ export function parseInstrumentForm(values: InstrumentFormValues): ParseResult {
       wavelengthIncreasesWithPixel: values.wavelengthIncreasesWithPixel === 'true',
       detectorCenterPixel: numberOrUndefined(values.detectorCenterPixel),
       detectorAngleDeg: numberOrUndefined(values.detectorAngleDeg),
+      detectorTiltDeg: numberOrUndefined(values.detectorTiltDeg),
       pixelCount: numberOrUndefined(values.pixelCount),
       notes: values.notes.trim() === '' ? undefined : values.notes,
     },

@@ -22,6 +22,7 @@ export function ProfileSummary({ profile }: { profile: InstrumentProfileInput })
     ['Wavelength', profile.wavelengthIncreasesWithPixel ? 'increases with pixel index' : 'decreases with pixel index'],
     ['Detector centre pixel', formatNumber(profile.detectorCenterPixel)],
     ['Diffraction angle at centre', profile.detectorAngleDeg === undefined ? '—' : `${formatNumber(profile.detectorAngleDeg)}°`],
+    ['Camera tilt', profile.detectorTiltDeg === undefined ? 'not stated (searched)' : `${formatNumber(profile.detectorTiltDeg)}°`],
   ];
   return (
     <div>

@@ -9,7 +9,10 @@ import type { Pin } from '../lib/pins.ts';
 /** The workbench inputs as the form holds them. */
 export interface WorkbenchSettings {
   driverNm: number;
+  /** 1σ of the measured driver wavelength, percent. */
   driverTolerancePct: number;
+  /** Ionisation blue shift allowed below it, percent. */
+  blueShiftPct: number;
   parity: 'odd' | 'all';
   filters: string[];
   model: WorkbenchModel;
@@ -70,12 +73,14 @@ export function WorkbenchForm({ settings, onChange, onRun, running, darkFrames, 
           value={preset?.id ?? ''}
           onChange={(e) => {
             const p = PRESETS.find((x) => x.id === e.target.value);
-            if (p) onChange({ ...settings, driverNm: p.wavelengthNm, driverTolerancePct: Number(((100 * p.toleranceNm) / p.wavelengthNm).toFixed(2)) });
+            // A preset's tolerance is the spread of a nameplate over systems and days: taken as ±2σ.
+            if (p) onChange({ ...settings, driverNm: p.wavelengthNm, driverTolerancePct: Number(((100 * p.toleranceNm) / 2 / p.wavelengthNm).toFixed(2)) });
           }}
           options={[{ value: '', label: 'custom' }, ...PRESETS.map((p) => ({ value: p.id, label: p.label }))]}
         />
         <TextField label="Driver wavelength (nm)" type="number" step="any" min="1" value={String(settings.driverNm)} onChange={(e) => set('driverNm', Number(e.target.value))} />
-        <TextField label="Driver tolerance (%)" type="number" step="any" min="0.01" max="20" value={String(settings.driverTolerancePct)} onChange={(e) => set('driverTolerancePct', Number(e.target.value))} />
+        <TextField label="Driver σ (%)" title="1σ of the measured driver wavelength (symmetric)" type="number" step="any" min="0.01" max="5" value={String(settings.driverTolerancePct)} onChange={(e) => set('driverTolerancePct', Number(e.target.value))} />
+        <TextField label="Blue shift allowed (%)" title="How far ionisation may shift the harmonics below the driver (an assumption)" type="number" step="any" min="0" max="5" value={String(settings.blueShiftPct)} onChange={(e) => set('blueShiftPct', Number(e.target.value))} />
         <SelectField
           label="Parity"
           value={settings.parity}
