@@ -1,6 +1,10 @@
 /**
- * fitPolynomial against the NIST StRD linear least-squares datasets (certified values computed by
- * NIST at 500-digit precision). Source: NIST/ITL Statistical Reference Datasets,
+ * fitPolynomial — the raw-monomial polynomial least squares with double-double refinement — against
+ * the NIST StRD linear least-squares datasets (certified values computed by NIST at 500-digit
+ * precision). NOT the calibration path: calibrateFrame fits fitPolynomialMap (a Chebyshev series
+ * on the detector's pixel domain), which does not call fitPolynomial; the two share only the
+ * Householder QR (householder.ts), the Chebyshev basis (chebyshev.ts) and conditionOfQr. The map
+ * itself is tested on these datasets in nist-strd-polynomial-map.test.ts. Source: NIST/ITL Statistical Reference Datasets,
  * https://www.itl.nist.gov/div898/strd/lls/lls.shtml; fixtures copied from
  * /work/shared/reference/nist-strd/ (each names its transcription). Longley is left out: it is a
  * six-regressor problem and fitPolynomial fits one regressor.
@@ -45,7 +49,7 @@ const cases: Array<[string, number]> = [
   ['Filip', 7],
 ];
 
-describe('fitPolynomial on NIST StRD', () => {
+describe('fitPolynomial (standalone, not on the calibration path) on NIST StRD', () => {
   it.each(cases)('%s: coefficients to ≥ %d digits, SDs and residual SD to ≥ 6', (name, minDigits) => {
     const d = load(name);
     expect(d.source).toContain('NIST');
