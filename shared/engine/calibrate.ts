@@ -3,7 +3,8 @@
  * as the `orderly calibrate --json` object. Never throws on bad data: an EngineError becomes a
  * `failed` result with its message.
  */
-import { assignOrders, DEFAULT_BLUE_SHIFT_PCT, DEFAULT_DRIVER_SIGMA_PCT, unanchoredScaleSigma, type AssignResult, type FilterSpec, type Hypothesis } from './assign/index.ts';
+import { findFilterEdges } from './anchors/index.ts';
+import { assignOrders, DEFAULT_BLUE_SHIFT_PCT, DEFAULT_DRIVER_SIGMA_PCT, unanchoredScaleSigma, type AssignInput, type AssignResult, type FilterSpec, type Hypothesis } from './assign/index.ts';
 import { HC_EV_NM } from './constants.ts';
 import { FIT_FLOOR_PX } from './assign/verdict.ts';
 import { evaluateCalibration, fitGratingMap, fitPolynomialMap, type GratingParameter } from './dispersion/index.ts';
@@ -294,6 +295,45 @@ function buildCalibration(
   };
 }
 
+/**
+ * Filter edges as anchors (anchors/README.md): after the first assignment, the filters' edges are
+ * looked for on the continuum with that assignment's map as the provisional one; edges located
+ * there go back to the assigner as known lines at their pixels and the assignment runs again, so
+ * the scale is anchored. The notes say where each edge was located and what it fixes, and which
+ * labelled orders each edge lies between (which fixes labels, not the scale).
+ */
+function anchorOnFilterEdges(
+  lineout: Lineout,
+  peaks: Peak[],
+  options: CalibrateOptions,
+  spectralAxis: 'x' | 'y',
+  known: MatchedKnownLines,
+  assignInput: AssignInput,
+  first: AssignResult & { best: Hypothesis },
+): { assignment: AssignResult; calibration: Calibration; notes: string[] } {
+  const calibration = buildCalibration(lineout, peaks, first, first.best, options, spectralAxis, known);
+  if ((options.filters ?? []).length === 0) return { assignment: first, calibration, notes: [] };
+  const found = findFilterEdges({
+    lineout,
+    peaks,
+    calibration,
+    labels: first.best.labels,
+    driverNm: first.driverNm,
+    parity: options.parity ?? 'odd',
+    filters: options.filters ?? [],
+    scaleSigmaRelative: first.scaleSigmaRelative,
+  });
+  if (found.knownLines.length === 0) return { assignment: first, calibration, notes: found.notes };
+  const withEdges: MatchedKnownLines = { assignLines: [...known.assignLines, ...found.knownLines], anchors: [...known.anchors, ...found.anchors] };
+  const second = assignOrders(peaks, { ...assignInput, knownLines: withEdges.assignLines });
+  if (second.status === 'failed' || !second.best) {
+    return { assignment: first, calibration, notes: [...found.notes, `The located edge(s) fit no labelling of the peaks, so the scale is not anchored by them: ${second.message}`] };
+  }
+  const anchored = buildCalibration(lineout, peaks, second, second.best, options, spectralAxis, withEdges);
+  const unused = second.anchored ? [] : ['The order assigner did not use the located edge(s) to anchor the scale.'];
+  return { assignment: second, calibration: anchored, notes: [...found.notes, ...unused] };
+}
+
 /** Runs the whole calibration on one frame. */
 export function calibrateFrame(frame: Frame, options: CalibrateOptions): CalibrateResult {
   let peaks: Peak[] = [];
@@ -310,7 +350,7 @@ export function calibrateFrame(frame: Frame, options: CalibrateOptions): Calibra
     if (peaks.length === 0) return failedResult('no peaks above the noise in the signal band: check the signal region, the exposure and the filters');
     const pixelCount = lineout.counts.length;
     const known = matchKnownLines(options.knownLines ?? [], peaks, pixelCount);
-    const assignment = assignOrders(peaks, {
+    const assignInput: AssignInput = {
       profile: options.profile,
       pixelCount,
       driverNm: options.driverNm,
@@ -320,13 +360,16 @@ export function calibrateFrame(frame: Frame, options: CalibrateOptions): Calibra
       filters: options.filters,
       pins: options.pins,
       knownLines: known.assignLines,
-    });
-    const hypotheses = assignment.hypotheses.map((h, i) => summarise(h, i + 1));
-    if (assignment.status === 'failed' || !assignment.best) {
-      return { ...failedResult(assignment.message, unlabelled(peaks), assignment.notes), hypotheses };
+    };
+    const firstAssignment = assignOrders(peaks, assignInput);
+    if (firstAssignment.status === 'failed' || !firstAssignment.best) {
+      return { ...failedResult(firstAssignment.message, unlabelled(peaks), firstAssignment.notes), hypotheses: firstAssignment.hypotheses.map((h, i) => summarise(h, i + 1)) };
     }
-    const best = assignment.best;
-    const calibration = buildCalibration(lineout, peaks, assignment, best, options, spectralAxis, known);
+    const edges = anchorOnFilterEdges(lineout, peaks, options, spectralAxis, known, assignInput, { ...firstAssignment, best: firstAssignment.best });
+    const { assignment, calibration } = edges;
+    const hypotheses = assignment.hypotheses.map((h, i) => summarise(h, i + 1));
+    const best = assignment.best!;
+    calibration.notes.push(...edges.notes);
     calibration.notes.unshift(describeAbsoluteScale(calibration));
     if (known.anchors.length > 0 && !assignment.anchored) {
       calibration.notes.unshift(`${known.anchors.length} known line(s) were given, but the order assigner did not use them to anchor the scale.`);
@@ -348,7 +391,7 @@ export function calibrateFrame(frame: Frame, options: CalibrateOptions): Calibra
         energyEv: known && Number.isFinite(lambda) ? HC_EV_NM / lambda : null,
       };
     });
-    return { status: assignment.status, message: assignment.message, peaks: labelled, hypotheses, calibration, notes: assignment.notes };
+    return { status: assignment.status, message: assignment.message, peaks: labelled, hypotheses, calibration, notes: [...assignment.notes, ...edges.notes] };
   } catch (error) {
     if (error instanceof EngineError) {
       const badOption = badOptionOf(error);
