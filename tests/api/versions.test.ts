@@ -7,6 +7,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
 import { paths } from '../../shared/api/paths.ts';
+import { driverPriorOf } from '../../shared/engine/simulate/index.ts';
 import type { SimFrame } from './frame-fixtures.ts';
 import { auditEvents } from '../../server/db/schema/index.ts';
 import { findVersionValidAt } from '../../server/modules/versions/service.ts';
@@ -31,8 +32,9 @@ async function uploadFrame(w: World, sim: SimFrame, name = 'shot.tif'): Promise<
   return res.body.id;
 }
 
+/** The driver as the scenario's lab would state it (1σ and blue-shift allowance; simulate/driver-prior.ts). */
 function runBody(sim: SimFrame, frameIds: string[], extra: Record<string, unknown> = {}) {
-  return { frameIds, driverNm: sim.scenario.driver.nominalNm, parity: sim.scenario.parity, ...extra };
+  return { frameIds, driverNm: sim.scenario.driver.nominalNm, ...driverPriorOf(sim.scenario.driver), parity: sim.scenario.parity, ...extra };
 }
 
 async function workbench(w: World, who: Who, body: object) {
@@ -73,7 +75,7 @@ describe('workbench runs', () => {
       expect(p.harmonic).toBe(truth.harmonic);
       expect(p.diffractionOrder).toBe(truth.diffractionOrder);
     }
-    expect(run.body.inputs).toMatchObject({ regionsSource: 'automatic', driverTolerancePct: 1, model: 'auto', pins: [], filters: [] });
+    expect(run.body.inputs).toMatchObject({ regionsSource: 'automatic', ...driverPriorOf(clean.scenario.driver), model: 'auto', pins: [], filters: [] });
   });
 
   it('who may run it: owner, scientist, admin 201; student, viewer 403; non-member 404', async () => {

@@ -7,7 +7,7 @@
  */
 import { parseArgs } from 'node:util';
 import { calibrateFrame } from '../../shared/engine/calibrate.ts';
-import { generateFieldScenarios, generateScenarios, simulateFrame } from '../../shared/engine/simulate/index.ts';
+import { driverPriorOf, generateFieldScenarios, generateScenarios, simulateFrame } from '../../shared/engine/simulate/index.ts';
 
 const { values } = parseArgs({ options: { class: { type: 'string', default: '' }, index: { type: 'string', default: '' }, count: { type: 'string', default: '' }, sim: { type: 'string', default: 'classic' }, seed: { type: 'string', default: '2026' }, max: { type: 'string', default: '3' }, only: { type: 'string', default: '' } } });
 const SEED = Number(values.seed);
@@ -20,7 +20,7 @@ for (let i = 0; i < scenarios.length && shown < Number(values.max); i++) {
   if (values.index && !values.index.split(',').includes(String(i))) continue;
   const { frame, truth } = simulateFrame(s, FIELD ? SEED * 104_729 + i : SEED * 7919 + i);
   const t0 = performance.now();
-  const r = calibrateFrame(frame, { profile: s.profile, driverNm: s.driver.nominalNm, driverTolerancePct: s.driver.tolerancePercent, parity: s.parity, filters: (s.filters ?? []).map((f) => ({ material: f.material, thicknessNm: f.thicknessNm })) });
+  const r = calibrateFrame(frame, { profile: s.profile, driverNm: s.driver.nominalNm, ...driverPriorOf(s.driver), parity: s.parity, filters: (s.filters ?? []).map((f) => ({ material: f.material, thicknessNm: f.thicknessNm })) });
   const ms = performance.now() - t0;
   if (values.only) {
     let ok = r.status === 'unique';

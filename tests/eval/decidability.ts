@@ -46,7 +46,7 @@ export function decidability(peaks: Peak[], truth: SimTruth, input: AssignInput)
     if (slipped.some((q) => q !== null && q < 1)) continue;
     // Scale of the slipped labelling: λ0 in its tolerance; a line in an opaque band cannot be seen.
     const driver = input.driverNm;
-    if (slipped.some((q) => q !== null && transmission((q * HC_EV_NM) / driver) < opaque && transmission((q * HC_EV_NM) / (driver * (1 - (input.driverTolerancePct ?? 1) / 100))) < opaque)) continue;
+    if (slipped.some((q) => q !== null && transmission((q * HC_EV_NM) / driver) < opaque && transmission((q * HC_EV_NM) / (driver * (1 - (input.blueShiftPct ?? 1) / 100))) < opaque)) continue;
     const fit = fitLabelling(peaks, input, slipped);
     if (!fit) continue;
     margin = Math.min(margin, fit.chiSquarePosition / s2 + fit.chiSquarePrior - truthScore);

@@ -7,7 +7,7 @@
 import { calibrateFrame, type CalibrateResult } from '../../shared/engine/calibrate.ts';
 import { decodeFrame } from '../../shared/engine/frames/index.ts';
 import { HC_EV_NM } from '../../shared/engine/constants.ts';
-import { encodeFits, encodePng16, encodeTiff, simulateFrame, steepestEdgeEv, type SimScenario, type SimTruth } from '../../shared/engine/simulate/index.ts';
+import { driverPriorOf, encodeFits, encodePng16, encodeTiff, simulateFrame, steepestEdgeEv, type SimScenario, type SimTruth } from '../../shared/engine/simulate/index.ts';
 import type { Frame, Peak } from '../../shared/engine/types.ts';
 import { decidability } from './decidability.ts';
 import { independentDecidability, type ScaleAnchorPoint } from './independent-decidability.ts';
@@ -57,7 +57,8 @@ function calibrateOptionsOf(scenario: SimScenario) {
   return {
     profile: scenario.profile,
     driverNm: scenario.driver.nominalNm,
-    driverTolerancePct: scenario.driver.tolerancePercent,
+    // The driver as the scenario's lab would state it: 1σ and blue-shift allowance (simulate/driver-prior.ts).
+    ...driverPriorOf(scenario.driver),
     parity: scenario.parity,
     filters: (scenario.filters ?? []).map((f) => ({ material: f.material, thicknessNm: f.thicknessNm })),
   };

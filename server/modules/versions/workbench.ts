@@ -86,6 +86,7 @@ export async function runWorkbench(deps: { db: Db; store: FrameStore }, user: Se
       profile,
       driverNm: input.driverNm,
       driverTolerancePct: input.driverTolerancePct,
+      blueShiftPct: input.blueShiftPct,
       parity: input.parity,
       filters,
       pins: input.pins,

@@ -39,8 +39,10 @@ export const DEFAULT_BLUE_SHIFT_PCT = 1;
 export const DEFAULT_DRIVER_SIGMA_PCT = 0.5;
 /** Incidence from the normal above which a spectrometer counts as grazing-incidence flat-field, degrees. */
 const GRAZING_INCIDENCE_DEG = 80;
-/** Margin around the unstated tilt band, degrees. */
-const TILT_MARGIN_DEG = 8;
+/** Margin around the flat-field value in the unstated tilt band, degrees. */
+const TILT_MARGIN_DEG = 6;
+/** A plain camera behind a grazing-incidence grating may lean this far either way, degrees (from memory). */
+const PLAIN_CAMERA_TILT_DEG = 16;
 /** Half-width of the tilt band of a normal-incidence instrument that states no tilt, degrees. */
 const NORMAL_INCIDENCE_TILT_DEG = 10;
 
@@ -117,10 +119,11 @@ export function buildPriors(profile: InstrumentProfile, pixelCount: number, driv
     const flat = flatFieldTiltDeg(profile);
     if (flat !== null) {
       tiltNominal = flat;
-      tiltLo = Math.min(0, flat) - TILT_MARGIN_DEG;
-      tiltHi = Math.max(0, flat) + TILT_MARGIN_DEG;
+      // A camera that is not on a flat focal plane may lean either way.
+      tiltLo = Math.min(-PLAIN_CAMERA_TILT_DEG, flat - TILT_MARGIN_DEG);
+      tiltHi = Math.max(PLAIN_CAMERA_TILT_DEG, flat + TILT_MARGIN_DEG);
       notes.push(
-        `The profile states no detector tilt: it was searched from ${tiltLo.toFixed(0)}° to ${tiltHi.toFixed(0)}° (perpendicular to the central ray through the flat-field value 90° − β0 ≈ ${flat.toFixed(1)}°). Stating the tilt in the profile narrows the search.`,
+        `The profile states no detector tilt: it was searched from ${tiltLo.toFixed(0)}° to ${tiltHi.toFixed(0)}° (a camera leaning either way, through the flat-field value 90° − β0 ≈ ${flat.toFixed(1)}°). Stating the tilt in the profile narrows the search.`,
       );
     } else {
       tiltNominal = 0;

@@ -146,7 +146,10 @@ export function drawNominalProfile(r: Random, g: GratingGeometry, spectralAxis: 
   const statesAngle = r.uniform() < R.statesAngleProbability;
   const statesTilt = r.uniform() < R.statesTiltProbability;
   const angle = g.detectorAngleDeg + r.between(-R.detectorAngleDeg, R.detectorAngleDeg);
-  const tilt = g.detectorTiltDeg + r.between(-R.statedTiltDeg, R.statedTiltDeg);
+  // A profile states its tilt in the product's convention (types.ts InstrumentProfile): positive when
+  // the long-wavelength end is farther from the grating, whichever way the pixels run.
+  const physicalTiltDeg = (g.wavelengthIncreasesWithPixel ? 1 : -1) * g.detectorTiltDeg;
+  const tilt = physicalTiltDeg + r.between(-R.statedTiltDeg, R.statedTiltDeg);
   return {
     name,
     spectralAxis,
