@@ -453,6 +453,11 @@ function solve(problem: LeastSquaresProblem, start: ArrayLike<number>, o: Resolv
       const rootMu = Math.sqrt(mu);
       for (let j = 0; j < n; j++) damped[j] = rootMu * scale[j];
       solveDampedStep(n, rFactor, qtr, damped, s, z, row, delta);
+      // A parameter on its bound whose step points out of the box is held there and the step
+      // solved again for the others (a damping so large that its δ vanishes): projecting such a
+      // step instead would keep the others' share of it, computed as if it could move.
+      const held = bounded && holdBlocked(n, p, delta, lower, upper, damped);
+      if (held) solveDampedStep(n, rFactor, qtr, damped, s, z, row, delta);
       let projected = false;
       for (let j = 0; j < n; j++) {
         const v = p[j] + delta[j];
@@ -467,7 +472,8 @@ function solve(problem: LeastSquaresProblem, start: ArrayLike<number>, o: Resolv
       let stepNormSq = 0;
       for (let j = 0; j < n; j++) stepNormSq += (scale[j] * taken[j]) ** 2;
       let predicted: number;
-      if (projected) {
+      // The short form of the predicted reduction holds for the damped step itself only.
+      if (projected || held) {
         predicted = (qtrSq - modelNormSquared(n, rFactor, qtr, taken)) / chi;
       } else {
         let dampedSq = 0;
@@ -503,6 +509,25 @@ function solve(problem: LeastSquaresProblem, start: ArrayLike<number>, o: Resolv
     }
   }
   return finish('maxIterations', iterations, false);
+}
+
+/** The damping that holds a parameter: its δ comes out below any representable change. */
+const HELD = 1e150;
+
+/**
+ * Marks (damped = HELD) each parameter on a bound whose step δ leaves the box; true when any was
+ * marked. One pass: a parameter the re-solved step then pushes out of the box is stopped at the
+ * bound by the projection that follows.
+ */
+function holdBlocked(n: number, p: Float64Array, delta: Float64Array, lower: Float64Array, upper: Float64Array, damped: Float64Array): boolean {
+  let held = false;
+  for (let j = 0; j < n; j++) {
+    if ((p[j] <= lower[j] && delta[j] < 0) || (p[j] >= upper[j] && delta[j] > 0)) {
+      damped[j] = HELD;
+      held = true;
+    }
+  }
+  return held;
 }
 
 /**
