@@ -32,7 +32,7 @@
  * predicted reduction of a projected step comes from the linear model itself. Soft walls are the
  * caller's residuals, since their shape is part of the caller's statistics.
  *
- * Cost: the iterations allocate nothing; the arrays are views into one pooled buffer.
+ * Cost: the iterations allocate nothing; the arrays live in a workspace kept per problem shape.
  */
 import { EngineError } from '../errors.ts';
 import { columnNorm, covarianceFromR, factorJacobian, modelNormSquared, normOfRTimesSquared, solveDampedStep } from './damped-qr.ts';
@@ -236,13 +236,10 @@ export function levenbergMarquardt(problem: LeastSquaresProblem, start: ArrayLik
   }
 }
 
-/** Every array one fit touches; views into a pooled buffer (see acquireWorkspace). */
+/** Every array one fit touches: views into one buffer, kept between fits (see acquireWorkspace). */
 interface Workspace {
-  /** What the views were cut for: m, n and the flags (finite differences, central, a separate factor). */
-  m: number;
-  n: number;
-  flags: number;
-  buffer: Float64Array;
+  /** A fit is using it now. */
+  busy: boolean;
   lower: Float64Array;
   upper: Float64Array;
   p: Float64Array;
@@ -275,26 +272,31 @@ function factorsInPlace(o: Resolved): boolean {
 }
 
 /**
- * One workspace, kept between fits: the peak fit runs per line per frame on windows of a few
- * dozen pixels, and a dozen fresh arrays per fit (most above V8's on-heap size, so each an
- * off-heap allocation the collector must sweep) cost as much as its arithmetic. The views are
- * reused as they are when the next fit has the same shape, recut from the same buffer otherwise.
- * A residual function that itself runs a fit finds the pool taken and gets a workspace of its own.
+ * Workspaces kept between fits, one per problem shape: the peak fit runs per line per frame on
+ * windows of a few dozen pixels, and a dozen fresh arrays per fit (most above V8's on-heap size,
+ * so each an off-heap allocation the collector must sweep) cost as much as its arithmetic, and
+ * cutting the views afresh still costs a tenth. A frame's windows come in a handful of sizes;
+ * past MAX_SHAPES the cache starts over. A residual function that itself runs a fit of the same
+ * shape finds that workspace busy and gets one of its own.
  */
-let pool: Workspace | null = null;
+const workspaces = new Map<number, Workspace>();
+const MAX_SHAPES = 32;
 
 function acquireWorkspace(o: Resolved, differences: boolean, central: boolean, separateFactor: boolean): Workspace {
   const { m, n } = o;
   const flags = (differences ? 1 : 0) | (central ? 2 : 0) | (separateFactor ? 4 : 0);
-  let ws: Workspace;
-  if (pool && pool.m === m && pool.n === n && pool.flags === flags) {
-    ws = pool;
-  } else {
+  const key = (m * 4096 + n) * 8 + flags;
+  let ws = workspaces.get(key);
+  if (!ws || ws.busy) {
     const size = 3 * m + 12 * n + (separateFactor ? 2 : 1) * m * n + 2 * n * n + (differences ? m : 0) + (central ? m : 0);
-    const buffer = pool && pool.buffer.length >= size ? pool.buffer : new Float64Array(Math.max(size, 2 * (pool?.buffer.length ?? 0), 4096));
-    ws = cutWorkspace(buffer, m, n, flags);
+    const fresh = cutWorkspace(new Float64Array(size), m, n, flags);
+    if (!ws) {
+      if (workspaces.size >= MAX_SHAPES) workspaces.clear();
+      workspaces.set(key, fresh);
+    }
+    ws = fresh;
   }
-  pool = null;
+  ws.busy = true;
   ws.scale.fill(0);
   for (let j = 0; j < n; j++) {
     ws.lower[j] = o.lower ? o.lower[j] : Number.NEGATIVE_INFINITY;
@@ -317,10 +319,7 @@ function cutWorkspace(buffer: Float64Array, m: number, n: number, flags: number)
   const work = take(m);
   const rPlus = differences ? take(m) : work;
   return {
-    m,
-    n,
-    flags,
-    buffer,
+    busy: false,
     lower: take(n),
     upper: take(n),
     p: take(n),
@@ -346,7 +345,7 @@ function cutWorkspace(buffer: Float64Array, m: number, n: number, flags: number)
 }
 
 function releaseWorkspace(ws: Workspace): void {
-  if (!pool || ws.buffer.length >= pool.buffer.length) pool = ws;
+  ws.busy = false;
 }
 
 function solve(problem: LeastSquaresProblem, start: ArrayLike<number>, o: Resolved, ws: Workspace): LevenbergMarquardtResult {
@@ -390,7 +389,7 @@ function solve(problem: LeastSquaresProblem, start: ArrayLike<number>, o: Resolv
   /** `lastJacobianServes`: J (and its factor) from the last iteration may give the covariance. */
   const finish = (stop: StopReason, iterations: number, lastJacobianServes: boolean): LevenbergMarquardtResult => {
     const withCovariance = o.covariance && Number.isFinite(chi);
-    // One allocation for everything returned (the workspace goes back to the pool): an off-heap
+    // One allocation for everything returned (the workspace is kept for the next fit): an off-heap
     // array buffer each costs about as much as a small fit's arithmetic.
     const out = new Float64Array(n + m + (withCovariance ? n * n : 0) + (withCovariance && o.keepJacobian ? m * n : 0));
     const parameters = out.subarray(0, n);
