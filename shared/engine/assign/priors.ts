@@ -41,6 +41,8 @@ export const DEFAULT_DRIVER_SIGMA_PCT = 0.5;
 const GRAZING_INCIDENCE_DEG = 80;
 /** Margin around the flat-field value in the unstated tilt band, degrees. */
 const TILT_MARGIN_DEG = 6;
+/** Flat-field tilt assumed when the profile gives neither the tilt nor β0, degrees (from memory: 10–15°). */
+const TYPICAL_FLAT_FIELD_TILT_DEG = 15;
 /** A plain camera behind a grazing-incidence grating may lean this far either way, degrees (from memory). */
 const PLAIN_CAMERA_TILT_DEG = 16;
 /** Half-width of the tilt band of a normal-incidence instrument that states no tilt, degrees. */
@@ -116,14 +118,17 @@ export function buildPriors(profile: InstrumentProfile, pixelCount: number, driv
     tiltLo = tiltNominal - ranges.tiltDeg;
     tiltHi = tiltNominal + ranges.tiltDeg;
   } else {
-    const flat = flatFieldTiltDeg(profile);
-    if (flat !== null) {
-      tiltNominal = flat;
+    const grazing = Math.abs(profile.incidenceAngleDeg) >= GRAZING_INCIDENCE_DEG;
+    if (grazing) {
+      // With the central angle stated, the flat-field value 90° − β0; without it, the common one.
+      const flat = flatFieldTiltDeg(profile);
+      const flatValue = flat ?? TYPICAL_FLAT_FIELD_TILT_DEG;
+      tiltNominal = flat ?? 0;
       // A camera that is not on a flat focal plane may lean either way.
-      tiltLo = Math.min(-PLAIN_CAMERA_TILT_DEG, flat - TILT_MARGIN_DEG);
-      tiltHi = Math.max(PLAIN_CAMERA_TILT_DEG, flat + TILT_MARGIN_DEG);
+      tiltLo = Math.min(-PLAIN_CAMERA_TILT_DEG, flatValue - TILT_MARGIN_DEG);
+      tiltHi = Math.max(PLAIN_CAMERA_TILT_DEG, flatValue + TILT_MARGIN_DEG);
       notes.push(
-        `The profile states no detector tilt: it was searched from ${tiltLo.toFixed(0)}° to ${tiltHi.toFixed(0)}° (a camera leaning either way, through the flat-field value 90° − β0 ≈ ${flat.toFixed(1)}°). Stating the tilt in the profile narrows the search.`,
+        `The profile states no detector tilt: it was searched from ${tiltLo.toFixed(0)}° to ${tiltHi.toFixed(0)}° (a camera leaning either way, through the flat-field value 90° − β0 ≈ ${flatValue.toFixed(1)}°${flat === null ? ', typical since the profile gives no β0' : ''}). Stating the tilt in the profile narrows the search.`,
       );
     } else {
       tiltNominal = 0;

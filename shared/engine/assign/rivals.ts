@@ -2,11 +2,14 @@
  * The rivals that make a confident answer wrong: every first-order label of the leading labelling
  * slipped by ±1 and ±2 parity steps, fitted in earnest from several starts.
  */
-import { P_DRIVER, P_INCIDENCE, type Wall } from './model.ts';
+import { fitModel, P_DRIVER, P_INCIDENCE, type Wall } from './model.ts';
+import { driverSpanNm } from './priors.ts';
 import { totalScore } from './score.ts';
 import {
   allowedHarmonic,
+  freeParameters,
   harmonicStep,
+  labelledPoints,
   refit,
   seedStart,
   type SearchContext,
@@ -60,16 +63,27 @@ export function shiftedRivals(ctx: SearchContext, best: Candidate): Candidate[] 
     // Keep the positions: λ0 scales with the harmonic, then clamp it into the blue-shift wall.
     let qRef = 0;
     for (let i = 0; i < n; i++) if (harmonic[i] > 0) qRef = Math.max(qRef, best.harmonic[i]);
-    a[P_DRIVER] = Math.min(driverWall.hi, Math.max(driverWall.lo, (a[P_DRIVER] * (qRef + shift)) / qRef));
+    const rescaled = (a[P_DRIVER] * (qRef + shift)) / qRef;
+    a[P_DRIVER] = Math.min(driverWall.hi, Math.max(driverWall.lo, rescaled));
     starts.push(a);
+    // Unclamped too: the slip's lines then sit where the leader's do, and the fit walks λ0 back
+    // along the flat valley into its band (from the clamped start it may stall halfway).
+    if (rescaled !== a[P_DRIVER]) {
+      const b = Float64Array.from(best.fit.parameters);
+      b[P_DRIVER] = rescaled;
+      starts.push(b);
+    }
     starts.push(...labellingStarts(ctx, harmonic, order1));
+    starts.push(...valleyStarts(ctx, harmonic, order1, best.fit.parameters));
     let bestCand: Candidate | null = null;
     // The slipped labelling keeps the same peaks (no growing: it is the same set of lines read one
     // step off); only its geometry is searched, from each start, and the best fit is finished.
     let bestStart: Float64Array | null = null;
     let bestCost = Infinity;
     for (const start of starts) {
-      const fit = refit(ctx, harmonic, order1, start).fit;
+      // Twice: the second pass restarts LM's damping from the first one's end (as fitLabelling does).
+      const first = refit(ctx, harmonic, order1, start).fit;
+      const fit = refit(ctx, harmonic, order1, first.parameters, true).fit;
       const cost = fit.chiSquarePosition + fit.chiSquarePrior;
       if (cost < bestCost) {
         bestCost = cost;
@@ -81,6 +95,30 @@ export function shiftedRivals(ctx: SearchContext, best: Candidate): Candidate[] 
       out.push(bestCand);
       if (totalScore(bestCand.raw, s2) - bestScore > HOPELESS_SLIP_MARGINS * UNIQUE_MARGIN) farBehind.add(Math.sign(k));
     }
+  }
+  return out;
+}
+
+/** λ0 values across the driver span from which a slip's geometry is fitted with λ0 held. */
+const VALLEY_STEPS = 5;
+
+/**
+ * Starts along the λ0 valley: the geometry fitted with λ0 held at points across the driver span.
+ * With λ0 free from one start, LM follows the long flat valley of λ0 against incidence, distance
+ * and tilt poorly and can stop against a wall far from the valley's floor; each held-λ0 fit is well
+ * conditioned.
+ */
+function valleyStarts(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, base: ArrayLike<number>): Float64Array[] {
+  const { points } = labelledPoints(ctx, harmonic, order);
+  const free = freeParameters(ctx, points.length).filter((j) => j !== P_DRIVER);
+  if (ctx.anchored || free.length === 0) return [];
+  const [lo, hi] = driverSpanNm(ctx.driver);
+  const out: Float64Array[] = [];
+  for (let k = 0; k < VALLEY_STEPS; k++) {
+    const start = Float64Array.from(base);
+    start[P_DRIVER] = lo + ((hi - lo) * (k + 0.5)) / VALLEY_STEPS;
+    const held = fitModel(ctx.model, points, start, free.slice(0, 2));
+    out.push(fitModel(ctx.model, points, held.parameters, free).parameters);
   }
   return out;
 }

@@ -15,7 +15,8 @@
  */
 import { harmonicEnergyEv, predictLines, type SearchContext } from './search.ts';
 import type { ModelFit, ModelPoint } from './model.ts';
-import { P_DRIVER } from './model.ts';
+import { P_DRIVER, wallResidual } from './model.ts';
+import { driverSpanNm } from './priors.ts';
 
 export interface RawScore {
   position: number;
@@ -47,6 +48,51 @@ function huber(z: number): number {
   return a <= 3 ? a * a : 6 * a - 9;
 }
 
+/** λ0 values tried across the driver span when the comb alone does not fix the scale. */
+const ENVELOPE_DRIVER_STEPS = 24;
+
+/** The envelope term at one λ0 (see the header). */
+function envelopeAt(ctx: SearchContext, firstOrder: { q: number; a: number }[], lambda0: number): number {
+  const step = ctx.parity === 'odd' ? 2 : 1;
+  let envelope = 0;
+  let previousU = 0;
+  for (let k = 0; k < firstOrder.length; k++) {
+    const t = Math.max(ctx.transmission(harmonicEnergyEv(lambda0, firstOrder[k].q)), 1e-8);
+    const u = firstOrder[k].a - Math.log(t);
+    if (k > 0) {
+      const gap = (firstOrder[k].q - firstOrder[k - 1].q) / step;
+      if (gap <= 3) {
+        const tau = ENVELOPE_TAU * Math.sqrt(gap);
+        // Relative to the uncorrected areas: without filters this term is 0 for every labelling, so
+        // a genuinely weak (missing) order costs all hypotheses alike.
+        envelope += huber((u - previousU) / tau) - huber((firstOrder[k].a - firstOrder[k - 1].a) / tau);
+      }
+    }
+    previousU = u;
+  }
+  return envelope;
+}
+
+/**
+ * The envelope term of a labelling. Without an anchor the positions barely fix λ0 (the geometry
+ * absorbs a common change of it), so the fitted λ0 is one arbitrary point of a flat valley and
+ * where it puts a filter edge decides nothing: the term is then the best over the driver span of
+ * envelope + the driver prior's cost beyond the fitted one. With an anchor λ0 is the fit's.
+ */
+function envelopeCost(ctx: SearchContext, firstOrder: { q: number; a: number }[], lambda0: number): number {
+  const atFit = envelopeAt(ctx, firstOrder, lambda0);
+  if (ctx.anchored || firstOrder.length < 2) return atFit;
+  const wall = ctx.model.walls[P_DRIVER];
+  const fitWall = wallResidual(wall, lambda0) ** 2;
+  const [lo, hi] = driverSpanNm(ctx.driver);
+  let best = atFit;
+  for (let k = 0; k <= ENVELOPE_DRIVER_STEPS; k++) {
+    const l0 = lo + ((hi - lo) * k) / ENVELOPE_DRIVER_STEPS;
+    best = Math.min(best, envelopeAt(ctx, firstOrder, l0) + Math.max(0, wallResidual(wall, l0) ** 2 - fitWall));
+  }
+  return best;
+}
+
 export function rawScore(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, fit: ModelFit, points: ModelPoint[]): RawScore {
   let normalisation = 0;
   for (const pt of points) normalisation += Math.log(2 * Math.PI * pt.sigmaPx * pt.sigmaPx);
@@ -55,7 +101,7 @@ export function rawScore(ctx: SearchContext, harmonic: Int32Array, order: Int8Ar
   let firstOrderCount = 0;
   let qMin = Infinity;
   let qMax = -Infinity;
-  const firstOrder: { q: number; u: number; a: number }[] = [];
+  const firstOrder: { q: number; a: number }[] = [];
   const lambda0 = fit.parameters[P_DRIVER];
   for (let i = 0; i < harmonic.length; i++) {
     if (harmonic[i] <= 0) {
@@ -66,9 +112,7 @@ export function rawScore(ctx: SearchContext, harmonic: Int32Array, order: Int8Ar
       firstOrderCount++;
       qMin = Math.min(qMin, harmonic[i]);
       qMax = Math.max(qMax, harmonic[i]);
-      const t = Math.max(ctx.transmission(harmonicEnergyEv(lambda0, harmonic[i])), 1e-8);
-      const a = Math.log(Math.max(ctx.peaks[i].area, 1e-12));
-      firstOrder.push({ q: harmonic[i], u: a - Math.log(t), a });
+      firstOrder.push({ q: harmonic[i], a: Math.log(Math.max(ctx.peaks[i].area, 1e-12)) });
     }
   }
   const labelled = new Set<number>();
@@ -86,16 +130,7 @@ export function rawScore(ctx: SearchContext, harmonic: Int32Array, order: Int8Ar
     missing += ctx.parity === 'all' && q % 2 === 0 ? MISSING_COST / 2 : MISSING_COST;
   }
   firstOrder.sort((a, b) => a.q - b.q);
-  let envelope = 0;
-  const step = ctx.parity === 'odd' ? 2 : 1;
-  for (let k = 1; k < firstOrder.length; k++) {
-    const gap = (firstOrder[k].q - firstOrder[k - 1].q) / step;
-    if (gap > 3) continue;
-    const tau = ENVELOPE_TAU * Math.sqrt(gap);
-    // Relative to the uncorrected areas: without filters this term is 0 for every labelling, so
-    // a genuinely weak (missing) order costs all hypotheses alike.
-    envelope += huber((firstOrder[k].u - firstOrder[k - 1].u) / tau) - huber((firstOrder[k].a - firstOrder[k - 1].a) / tau);
-  }
+  const envelope = envelopeCost(ctx, firstOrder, lambda0);
   const fittedPoints = points.length;
   return {
     position: fit.chiSquarePosition,

@@ -93,7 +93,7 @@ export interface Hypothesis {
 
 /** One check the leading labelling must pass before it is called unique (verdict.ts). */
 export interface VerdictGate {
-  name: 'fit' | 'explained' | 'priors' | 'lines' | 'margin';
+  name: 'fit' | 'explained' | 'comb' | 'priors' | 'lines' | 'margin';
   passed: boolean;
   detail: string;
 }

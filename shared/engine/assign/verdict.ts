@@ -7,6 +7,7 @@
  *   centroid's σ (a centroid is not better than the detector's pixel response and the line shape
  *   allow, whatever its photon statistics claim), judged against its degrees of freedom.
  * - explained: most bright peaks sit on a line of the labelling (m = 1 or m = 2).
+ * - comb: most of the lines the labelling predicts between its ends are seen.
  * - priors: no parameter sits beyond its realignment range (a best fit pressed against a wall is a
  *   sign that the labelling needs a geometry the instrument does not have).
  * - lines: at least three first-order lines, or a pin or an anchor.
@@ -16,7 +17,7 @@
  * "only" when the margin passed.
  */
 import { P_DRIVER, PARAMETER_NAMES, wallResidual, type ModelFit, type ModelPoint } from './model.ts';
-import type { SearchContext } from './search.ts';
+import { harmonicEnergyEv, predictLines, type SearchContext } from './search.ts';
 
 /** Margin in −2 ln L for `unique` (≈ 4σ). */
 export const UNIQUE_MARGIN = 16;
@@ -30,6 +31,8 @@ const BRIGHT_FRACTION = 0.2;
 /** Share of the bright peaks that may stay unexplained (stray lines, other sources). */
 const MAX_UNEXPLAINED_SHARE = 0.3;
 const MAX_UNEXPLAINED_ALWAYS_ALLOWED = 2;
+/** Share of the predicted lines between the labelling's ends that must be seen. */
+const MIN_COMB_COMPLETENESS = 0.5;
 /** Beyond a geometry wall by this many softness units (2 % of the range each) counts as sitting on it. */
 const GEOMETRY_WALL_UNITS = 1.5;
 /** The driver's tail is Gaussian with its σ: beyond the blue-shift band by this many σ fails. */
@@ -50,7 +53,7 @@ export interface VerdictInput {
 }
 
 export interface Gate {
-  name: 'fit' | 'explained' | 'priors' | 'lines' | 'margin';
+  name: 'fit' | 'explained' | 'comb' | 'priors' | 'lines' | 'margin';
   passed: boolean;
   /** Plain words: what was measured, and (when failed) what to check. */
   detail: string;
@@ -77,6 +80,41 @@ function fitTooBad(chiSquare: number, dof: number): boolean {
 function formatParameter(index: number, value: number): string {
   const name = PARAMETER_NAMES[index];
   return `${name} = ${Math.abs(value) >= 100 ? value.toFixed(1) : value.toPrecision(5)}`;
+}
+
+/**
+ * First-order lines the labelling puts between its lowest and highest harmonic, on the detector,
+ * where the filters pass at least a third of what they pass at its faintest-transmitted labelled
+ * line, and where no peak sits (even orders under parity 'all' count half: often weak). A labelling
+ * that claims a line through a nearly opaque filter must show the better-transmitted ones too.
+ */
+function unseenCombLines(v: VerdictInput): number {
+  const { ctx, fit } = v;
+  const lambda0 = fit.parameters[P_DRIVER];
+  const labelled = new Set<number>();
+  let qMin = Infinity;
+  let qMax = -Infinity;
+  let faintestT = Infinity;
+  for (let i = 0; i < v.harmonic.length; i++) {
+    if (!(v.harmonic[i] > 0 && v.order[i] === 1)) continue;
+    const q = v.harmonic[i];
+    labelled.add(q);
+    qMin = Math.min(qMin, q);
+    qMax = Math.max(qMax, q);
+    faintestT = Math.min(faintestT, ctx.transmission(harmonicEnergyEv(lambda0, q)));
+  }
+  if (!Number.isFinite(qMin)) return 0;
+  const expectedFrom = Math.min(0.1, faintestT / 3);
+  const lines = predictLines(ctx, fit.parameters, 1);
+  const n = ctx.model.pixelCount;
+  let unseen = 0;
+  for (let j = 0; j < lines.pixel.length; j++) {
+    const q = lines.harmonic[j];
+    if (q <= qMin || q >= qMax || labelled.has(q) || lines.pixel[j] < 2 || lines.pixel[j] > n - 3) continue;
+    if (ctx.transmission(harmonicEnergyEv(lambda0, q)) < expectedFrom) continue;
+    unseen += ctx.parity === 'all' && q % 2 === 0 ? 0.5 : 1;
+  }
+  return unseen;
 }
 
 export function decideVerdict(v: VerdictInput): Verdict {
@@ -114,6 +152,19 @@ export function decideVerdict(v: VerdictInput): Verdict {
     detail: unexplainedBad
       ? `${unexplained} of ${bright} bright peaks sit on no line of it: check the driver wavelength and parity, the profile, and whether a second source or stray light puts lines on the camera`
       : `${bright - unexplained} of ${bright} bright peaks explained`,
+  });
+
+  // A comb is mostly there between its ends: a few orders may be missing (a filter, a weak order),
+  // but three lines with most of the orders between them absent are a coincidence, not a comb.
+  const missingLines = unseenCombLines(v);
+  const completeness = v.firstOrderCount / Math.max(1, v.firstOrderCount + missingLines);
+  const combBad = completeness < MIN_COMB_COMPLETENESS;
+  gates.push({
+    name: 'comb',
+    passed: !combBad,
+    detail: combBad
+      ? `only ${v.firstOrderCount} of the ${Math.round(v.firstOrderCount + missingLines)} lines it puts between its ends (where the filters pass at least what they pass at its faintest-transmitted line) are seen: check that the lines are harmonics of this driver at all, the driver wavelength and the filters`
+      : `${v.firstOrderCount} of ${Math.round(v.firstOrderCount + missingLines)} lines between its ends seen`,
   });
 
   const offWall: string[] = [];

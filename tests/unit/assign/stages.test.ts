@@ -79,7 +79,7 @@ describe('verdict gates', () => {
     const c = regimeCase(REGIMES[0], 2);
     const r = assignOrders(c.sim.peaks, c.input);
     expect(r.status).toBe('unique');
-    expect(r.gates.map((g) => g.name)).toEqual(['fit', 'explained', 'priors', 'lines', 'margin']);
+    expect(r.gates.map((g) => g.name)).toEqual(['fit', 'explained', 'comb', 'priors', 'lines', 'margin']);
     expect(r.gates.every((g) => g.passed)).toBe(true);
   });
 
