@@ -36,7 +36,7 @@ export const calibrationSchema = z
       })
       .optional(),
     grating: z
-      .object({ geometry, parameterNames: z.array(z.string()), parameters: z.array(finite), covariance: matrix })
+      .object({ geometry, parameterNames: z.array(z.string()), heldParameterNames: z.array(z.string()).optional(), parameters: z.array(finite), covariance: matrix })
       .optional(),
     driverNm: finite.positive(),
     driverSigmaNm: finite.nonnegative(),

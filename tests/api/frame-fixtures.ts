@@ -85,7 +85,11 @@ export function variant(tiff: Uint8Array, n: number): Uint8Array {
 /** The instrument profile of a scenario as the API stores it (no name/notes). */
 export function apiProfile(scenario: SimScenario) {
   const { name: _n, notes: _o, ...profile } = scenario.profile;
-  return { ...profile, pixelCount: scenario.width } as InstrumentRow['profile'];
+  // The lab measured its camera's tilt to the nearest degree (the profile's convention, types.ts:
+  // positive when the long-wavelength end is farther from the grating).
+  const g = scenario.geometry;
+  const detectorTiltDeg = profile.detectorTiltDeg ?? Math.round((g.wavelengthIncreasesWithPixel ? 1 : -1) * g.detectorTiltDeg);
+  return { ...profile, detectorTiltDeg, pixelCount: scenario.width } as InstrumentRow['profile'];
 }
 
 export const ROLES: Role[] = ['owner', 'scientist', 'student', 'viewer'];

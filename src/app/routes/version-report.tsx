@@ -72,7 +72,8 @@ export function VersionReportRoute() {
             <dd>
               {c.model}
               {c.polynomial ? ` (degree ${c.polynomial.degree}, ${c.polynomial.degreeCriterion})` : ''}
-              {c.grating ? ` (fitted: ${c.grating.parameterNames.join(', ')})` : ''}
+              {c.grating ? ` (fitted: ${c.grating.parameterNames.filter((n) => !(c.grating?.heldParameterNames ?? []).includes(n)).join(', ')})` : ''}
+              {c.grating?.heldParameterNames?.length ? ` (held, spread in the band: ${c.grating.heldParameterNames.join(', ')})` : ''}
             </dd>
             <dt className="text-slate-500">driver (fitted)</dt>
             <dd>

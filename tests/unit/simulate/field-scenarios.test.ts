@@ -90,7 +90,8 @@ describe('generateFieldScenarios: ranges of real instruments (PRODUCT.md domain 
       expect(Math.abs(p.detectorDistanceMm / g.detectorDistanceMm - 1)).toBeLessThanOrEqual(0.08 + 1e-12);
       expect(Math.abs((p.detectorCenterPixel as number) - g.detectorCenterPixel)).toBeLessThanOrEqual(100);
       if (p.detectorAngleDeg !== undefined) expect(Math.abs(p.detectorAngleDeg - g.detectorAngleDeg)).toBeLessThanOrEqual(0.3);
-      if (p.detectorTiltDeg !== undefined) expect(Math.abs(p.detectorTiltDeg - g.detectorTiltDeg)).toBeLessThanOrEqual(2);
+      // Stated in the profile's convention (types.ts): positive when the long-wavelength end is farther from the grating.
+      if (p.detectorTiltDeg !== undefined) expect(Math.abs(p.detectorTiltDeg - (g.wavelengthIncreasesWithPixel ? 1 : -1) * g.detectorTiltDeg)).toBeLessThanOrEqual(2);
       expect(p.pixelCount).toBe(spectralLength(s));
       expect(p.notes).toMatch(/Invented/);
     }
