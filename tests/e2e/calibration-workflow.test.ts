@@ -21,7 +21,7 @@ import { createUser } from '../../server/modules/users/service.ts';
 import { insertMembership } from '../../server/modules/members/queries.ts';
 import { insertInstrument } from '../../server/modules/instruments/queries.ts';
 import { decodeFrame } from '../../shared/engine/frames/index.ts';
-import { encodeTiff, generateScenario, simulateFrame } from '../../shared/engine/simulate/index.ts';
+import { driverPriorOf, encodeTiff, generateScenario, simulateFrame } from '../../shared/engine/simulate/index.ts';
 import type { SimScenario, SimTruth } from '../../shared/engine/simulate/index.ts';
 import { calibrateFrame } from '../../shared/engine/calibrate.ts';
 import type { Frame } from '../../shared/engine/types.ts';
@@ -56,6 +56,12 @@ async function listFiles(dir: string): Promise<string[]> {
 
 const TOLERANCE_DIGITS = 2;
 
+/** The driver as the scenario's lab would state it (simulate/driver-prior.ts), as typed in the form. */
+function browserDriverPrior(s: SimScenario) {
+  const prior = driverPriorOf(s.driver);
+  return { driverTolerancePct: Number(prior.driverTolerancePct.toFixed(TOLERANCE_DIGITS)), blueShiftPct: Number(prior.blueShiftPct.toFixed(TOLERANCE_DIGITS)) };
+}
+
 /**
  * The true line the scientist pins: the first visible simulated line (by pixel) whose true order,
  * pinned on the engine's nearest peak, makes the engine's answer unique — asked of the engine
@@ -66,7 +72,7 @@ function pinnableLine(frame: Frame, truth: SimTruth, s: SimScenario) {
   const options = {
     profile: s.profile,
     driverNm: 800,
-    driverTolerancePct: Number(s.driver.tolerancePercent.toFixed(TOLERANCE_DIGITS)),
+    ...browserDriverPrior(s),
     parity: s.parity,
     signal: SIGNAL,
     background: BACKGROUND,
@@ -128,9 +134,10 @@ async function uploadFrames(page: Page, files: string[], takenAt: string) {
 }
 
 /** On the workbench page: run, expect `ambiguous`, pin the peak nearest `pixel` to `harmonic`, expect `unique`. */
-async function runAndPin(page: Page, tolerancePct: number, pixel: number, harmonic: number, shotName?: string) {
+async function runAndPin(page: Page, prior: { driverTolerancePct: number; blueShiftPct: number }, pixel: number, harmonic: number, shotName?: string) {
   await page.getByLabel('Driver wavelength (nm)').fill('800');
-  await page.getByLabel('Driver tolerance (%)').fill(String(tolerancePct));
+  await page.getByLabel('Driver σ (%)').fill(String(prior.driverTolerancePct));
+  await page.getByLabel('Blue shift allowed (%)').fill(String(prior.blueShiftPct));
   await page.getByRole('button', { name: 'Run the engine' }).click();
   const banner = page.getByTestId('ambiguous-banner');
   await banner.waitFor({ timeout: 30_000 });
@@ -368,7 +375,7 @@ describe('recalibration workflow in the browser', () => {
     await page.getByRole('heading', { name: 'Recalibration workbench' }).waitFor();
     expect(await page.getByRole('complementary', { name: 'Safety caution' }).textContent()).toContain('Class 4 lasers');
     const line1 = pinLines[0];
-    await runAndPin(page, Number(scenario.driver.tolerancePercent.toFixed(TOLERANCE_DIGITS)), line1.pixel, line1.harmonic, 'workbench');
+    await runAndPin(page, browserDriverPrior(scenario), line1.pixel, line1.harmonic, 'workbench');
     await page.getByTestId('residuals-plot').locator('canvas').first().waitFor();
     await screenshot(page, 'workbench');
     version1Url = await saveAndSubmit(page, VALID_1, 'After the grating realignment of 30 November (invented).');
@@ -395,7 +402,7 @@ describe('recalibration workflow in the browser', () => {
     await page.goto(`${base}/instruments/${instrumentId}/workbench?frames=${frameIds[1]}`);
     await page.getByRole('heading', { name: 'Recalibration workbench' }).waitFor();
     const line2 = pinLines[1];
-    await runAndPin(page, Number(scenario.driver.tolerancePercent.toFixed(TOLERANCE_DIGITS)), line2.pixel, line2.harmonic);
+    await runAndPin(page, browserDriverPrior(scenario), line2.pixel, line2.harmonic);
     version2Url = await saveAndSubmit(page, VALID_2, 'Camera moved on 1 December (invented).');
     const version2Id = version2Url.split('/').pop() ?? '';
 

@@ -111,7 +111,7 @@ describe('known lines in the workbench', () => {
     await page.getByRole('link', { name: 'Open in workbench' }).click();
     await page.getByRole('heading', { name: 'Recalibration workbench' }).waitFor();
 
-    await page.getByLabel('Driver tolerance (%)').fill('1');
+    await page.getByLabel('Driver σ (%)').fill('1');
     await page.getByRole('button', { name: 'Run the engine' }).click();
     const statement = page.getByTestId('scale-statement');
     await statement.waitFor({ timeout: 30_000 });

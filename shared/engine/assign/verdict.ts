@@ -32,7 +32,7 @@ const BRIGHT_FRACTION = 0.2;
 const MAX_UNEXPLAINED_SHARE = 0.3;
 const MAX_UNEXPLAINED_ALWAYS_ALLOWED = 2;
 /** Share of the predicted lines between the labelling's ends that must be seen. */
-const MIN_COMB_COMPLETENESS = 0.5;
+const MIN_COMB_COMPLETENESS = 0.6;
 /** Beyond a geometry wall by this many softness units (2 % of the range each) counts as sitting on it. */
 const GEOMETRY_WALL_UNITS = 1.5;
 /** The driver's tail is Gaussian with its σ: beyond the blue-shift band by this many σ fails. */
