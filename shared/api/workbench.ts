@@ -46,7 +46,7 @@ export const workbenchRunSchema = z.object({
   /** 1σ of the measured driver wavelength, percent. */
   driverTolerancePct: z.number({ error: 'driverTolerancePct must be a number' }).positive({ message: 'driverTolerancePct must be positive' }).max(5, { message: 'driverTolerancePct (1σ) must be at most 5' }).default(0.5),
   /** Ionisation blue-shift allowance below the measured driver, percent. */
-  blueShiftPct: z.number({ error: 'blueShiftPct must be a number' }).min(0, { message: 'blueShiftPct must be 0 or more' }).max(5, { message: 'blueShiftPct must be at most 5' }).default(1),
+  blueShiftPct: z.number({ error: 'blueShiftPct must be a number' }).min(0, { message: 'blueShiftPct must be 0 or more' }).lt(10, { message: 'blueShiftPct must be below 10' }).default(1),
   parity: z.enum(parities, { error: 'parity must be "odd" or "all"' }).default('odd'),
   /** Filter foils, engine notation: "Al" or "Al:200" (200 nm). */
   filters: z.array(z.string().trim().min(1).max(50)).max(10).default([]),

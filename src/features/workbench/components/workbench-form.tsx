@@ -80,7 +80,7 @@ export function WorkbenchForm({ settings, onChange, onRun, running, darkFrames, 
         />
         <TextField label="Driver wavelength (nm)" type="number" step="any" min="1" value={String(settings.driverNm)} onChange={(e) => set('driverNm', Number(e.target.value))} />
         <TextField label="Driver σ (%)" title="1σ of the measured driver wavelength (symmetric)" type="number" step="any" min="0.01" max="5" value={String(settings.driverTolerancePct)} onChange={(e) => set('driverTolerancePct', Number(e.target.value))} />
-        <TextField label="Blue shift allowed (%)" title="How far ionisation may shift the harmonics below the driver (an assumption)" type="number" step="any" min="0" max="5" value={String(settings.blueShiftPct)} onChange={(e) => set('blueShiftPct', Number(e.target.value))} />
+        <TextField label="Blue shift allowed (%)" title="How far ionisation may shift the harmonics below the driver (an assumption)" type="number" step="any" min="0" max="9.99" value={String(settings.blueShiftPct)} onChange={(e) => set('blueShiftPct', Number(e.target.value))} />
         <SelectField
           label="Parity"
           value={settings.parity}
