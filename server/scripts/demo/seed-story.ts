@@ -9,7 +9,7 @@ import { and, eq, inArray } from 'drizzle-orm';
 import type { SessionUser } from '../../../shared/api/session.ts';
 import { uploadFieldsSchema } from '../../../shared/api/frames.ts';
 import { workbenchRunSchema } from '../../../shared/api/workbench.ts';
-import { encodeTiff, simulateFrame } from '../../../shared/engine/simulate/index.ts';
+import { driverPriorOf, encodeTiff, simulateFrame } from '../../../shared/engine/simulate/index.ts';
 import type { Db } from '../../db/client.ts';
 import { frames, instruments, spectra, users } from '../../db/schema/index.ts';
 import type { Mailer } from '../../mail/mailer.ts';
@@ -90,7 +90,8 @@ async function seedOneStory(deps: { db: Db; store: FrameStore }, story: DemoInst
       workbenchRunSchema.parse({
         frameIds: [result.frameIds.get(v.frameName)!],
         driverNm: frame.meta.driverNm,
-        driverTolerancePct: frame.scenario.driver.tolerancePercent,
+        // The driver as the simulated lab would state it: 1σ and blue-shift allowance.
+        ...driverPriorOf(frame.scenario.driver),
         parity: frame.meta.parity,
         filters: frame.meta.filters,
       }),
