@@ -95,6 +95,7 @@ export interface Hypothesis {
 export interface VerdictGate {
   name: 'fit' | 'explained' | 'comb' | 'priors' | 'lines' | 'margin';
   passed: boolean;
+  /** Plain words: what was measured, and (when failed) what to check. */
   detail: string;
 }
 

@@ -18,6 +18,7 @@
  */
 import { P_DRIVER, PARAMETER_NAMES, wallResidual, type ModelFit, type ModelPoint } from './model.ts';
 import { harmonicEnergyEv, predictLines, type SearchContext } from './search.ts';
+import type { VerdictGate } from './types.ts';
 
 /** Margin in −2 ln L for `unique` (≈ 4σ). */
 export const UNIQUE_MARGIN = 16;
@@ -52,12 +53,7 @@ export interface VerdictInput {
   blended: Set<number>;
 }
 
-export interface Gate {
-  name: 'fit' | 'explained' | 'comb' | 'priors' | 'lines' | 'margin';
-  passed: boolean;
-  /** Plain words: what was measured, and (when failed) what to check. */
-  detail: string;
-}
+export type Gate = VerdictGate;
 
 export interface Verdict {
   status: 'unique' | 'ambiguous' | 'failed';

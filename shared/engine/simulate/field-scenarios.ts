@@ -13,6 +13,7 @@
  * (class, seed, index) alone: drawn from its own stream, accepted on its expected lines
  * (expectedLines, no rendering) or redrawn from the same stream.
  */
+import { FILTER_EDGE_WINDOWS_EV } from './filter-windows.ts';
 import { HC_EV_NM } from '../constants.ts';
 import { EngineError } from '../errors.ts';
 import type { GratingGeometry, InstrumentProfile, Parity } from '../types.ts';
@@ -60,16 +61,6 @@ export interface GenerateFieldScenariosOptions {
   filterTransmission?: FilterTransmissionFn;
 }
 
-/** Filters a lab puts in the beam, with the windows (eV) where each one's useful edge sits in the 15-300 eV tables. */
-const FILTER_EDGE_WINDOWS_EV: Record<string, [number, number]> = {
-  Al: [60, 90],
-  Mg: [40, 60],
-  Si: [90, 110],
-  Zr: [150, 260],
-  Sn: [18, 30],
-  In: [14, 22],
-  Ti: [25, 40],
-};
 const FILTER_MATERIALS = Object.keys(FILTER_EDGE_WINDOWS_EV);
 
 const MAX_ATTEMPTS = 600;

@@ -8,6 +8,7 @@
  * detector (expectedLines, no rendering) meet its class's conditions; otherwise it is redrawn
  * from the same stream, so the result is still a function of the seed alone.
  */
+import { FILTER_EDGE_WINDOWS_EV } from './filter-windows.ts';
 import { HC_EV_NM } from '../constants.ts';
 import { EngineError } from '../errors.ts';
 import { pixelToWavelengthNm } from '../grating.ts';
@@ -52,16 +53,8 @@ export interface GenerateScenariosOptions {
   filterTransmission?: FilterTransmissionFn;
 }
 
-/** Filter edge search windows, eV (where each material's useful edge sits in the 15-300 eV tables). */
-const FILTER_EDGE_WINDOWS_EV: Record<string, [number, number]> = {
-  Al: [60, 90],
-  Mg: [40, 60],
-  Si: [90, 110],
-  Zr: [150, 260],
-  Sn: [18, 30],
-  In: [14, 22],
-};
-const FILTER_MATERIALS = Object.keys(FILTER_EDGE_WINDOWS_EV);
+/** The classic scenarios draw from the filters they always drew from (Ti came later, with the field scenarios). */
+const FILTER_MATERIALS = Object.keys(FILTER_EDGE_WINDOWS_EV).filter((m) => m !== 'Ti');
 
 /** Highest photon energy a driver's harmonics plausibly reach here, eV (cutoff grows ~λ²; capped by the 300 eV tables). */
 function maxEnergyEv(driverNm: number): number {

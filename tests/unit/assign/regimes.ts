@@ -8,17 +8,13 @@
  */
 import type { AssignInput } from '../../../shared/engine/assign/index.ts';
 import type { InstrumentProfile } from '../../../shared/engine/types.ts';
-import { rng, simulatePeaks, type SimPeaks } from './peak-sim.ts';
+import { rng, simulatePeaks, XUV_PROFILE, type SimPeaks } from './peak-sim.ts';
 
 /** The XUV test profile: 1200 l/mm, 87°, 235 mm, 13.5 µm pixels, 2048 px (invented). */
 export const FLAT_FIELD_PROFILE: InstrumentProfile = {
+  ...XUV_PROFILE,
   name: 'invented XUV flat-field (regime tests)',
-  spectralAxis: 'x',
-  grooveDensityPerMm: 1200,
-  incidenceAngleDeg: 87,
-  detectorDistanceMm: 235,
-  pixelPitchUm: 13.5,
-  wavelengthIncreasesWithPixel: true,
+  detectorTiltDeg: undefined,
   detectorCenterPixel: 1023.5,
   detectorAngleDeg: 74,
   pixelCount: 2048,
