@@ -260,7 +260,7 @@ function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
     scaleSigmaRelative = driverPriorMoments(ctx.driver).sigmaRelative;
     driverSigmaNm = scaleSigmaRelative * driverNm;
     notes.push(
-      `No absolute anchor: the driver wavelength is taken as ${driverNm.toFixed(3)} nm, the middle of its tolerance, so the whole wavelength scale is uncertain by ±${(200 * scaleSigmaRelative).toFixed(2)} % (2σ). A filter edge seen on a continuum, a known line or a geometry measured after the realignment would pin it.`,
+      `No absolute anchor: the driver wavelength is taken as ${driverNm.toFixed(3)} nm, the mean of its prior (the measured wavelength less half the blue-shift allowance), so the whole wavelength scale is uncertain by ±${(200 * scaleSigmaRelative).toFixed(2)} % (2σ). A filter edge seen on a continuum, or a known line, would pin it.`,
     );
   }
   const blendCount = best.blends.size;
