@@ -282,7 +282,7 @@ function assignInner(peaks: Peak[], input: AssignInput): AssignResult {
     reducedChiSquare: reducedChi,
     notes,
   };
-  const lineWord = `${best.raw.firstOrderCount} first-order line(s) q = ${bestHyp.firstHarmonic}–${bestHyp.lastHarmonic}${best.raw.secondOrderCount ? `, ${best.raw.secondOrderCount} m = 2 line(s)` : ''}${best.raw.unexplainedCount ? `, ${best.raw.unexplainedCount} unexplained peak(s)` : ''}`;
+  const lineWord = `${best.raw.firstOrderCount} first-order line(s) q = ${bestHyp.firstHarmonic}–${bestHyp.lastHarmonic}${best.raw.secondOrderCount ? `, ${best.raw.secondOrderCount} higher-order (m ≥ 2) line(s)` : ''}${best.raw.unexplainedCount ? `, ${best.raw.unexplainedCount} unexplained peak(s)` : ''}`;
   const delta = runnerUp ? totalScore(runnerUp.raw, s2) - bestScore : Infinity;
   const verdict = decideVerdict({
     ctx,

@@ -103,13 +103,13 @@ export function finish(ctx: SearchContext, harmonic: Int32Array, order: Int8Arra
     }
   }
   const dof = Math.max(1, state.points.length - state.fit.freeIndices.length);
-  const before = order.filter((m) => m === 2).length;
+  const before = order.filter((m) => m >= 2).length;
   const h0 = Int32Array.from(harmonic);
   const m0 = Int8Array.from(order);
   const without = rawScore(ctx, h0, m0, state.fit, state.points);
   labelSecondOrder(ctx, harmonic, order, state.fit, dof);
   let raw = without;
-  if (order.filter((m) => m === 2).length !== before) {
+  if (order.filter((m) => m >= 2).length !== before) {
     // Keep the m = 2 labels only if the labelling with them scores better as a whole: a false
     // peak taken for an m = 2 line must not drag the fit of the real lines.
     const withState = refit(ctx, harmonic, order, state.fit.parameters, true);

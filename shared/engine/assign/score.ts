@@ -107,7 +107,7 @@ export function rawScore(ctx: SearchContext, harmonic: Int32Array, order: Int8Ar
     if (harmonic[i] <= 0) {
       if (!ctx.knownPeaks.has(i)) unexplainedCount++;
     }
-    else if (order[i] === 2) secondOrderCount++;
+    else if (order[i] >= 2) secondOrderCount++;
     else {
       firstOrderCount++;
       qMin = Math.min(qMin, harmonic[i]);

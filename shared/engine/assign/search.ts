@@ -131,6 +131,8 @@ export function predictLines(ctx: SearchContext, p: ArrayLike<number>, m: number
     if (!allowedHarmonic(ctx.parity, q)) continue;
     // Parity 'all': m = 2 of an even q lands exactly on m = 1 of q/2 — a blend, not a separate line.
     if (m === 2 && ctx.parity === 'all' && q % 2 === 0) continue;
+    // m = 3 of 3k lands exactly on m = 1 of k: a blend, not a separate line.
+    if (m === 3 && q % 3 === 0 && allowedHarmonic(ctx.parity, q / 3)) continue;
     if (ctx.transmission(harmonicEnergyEv(lambda0, q)) < ctx.opaqueTransmission) continue;
     const px = predictPixel(ctx.model, p, (m * lambda0) / q);
     if (Number.isFinite(px)) items.push([px, q]);

@@ -1,7 +1,8 @@
 /**
- * Second and higher diffraction orders among the peaks: leftover peaks that sit on an m = 2 line of
- * the fitted map, are fainter than their m = 1 partner and (when measured) narrower along the
- * spatial axis; and, for parity 'all', the m = 2 lines that land exactly on m = 1 lines (blends).
+ * Second and third diffraction orders among the peaks: leftover peaks that sit on an m = 2 (then
+ * m = 3) line of the fitted map, are fainter than their m = 1 partner and (when measured) narrower
+ * along the spatial axis; and, for parity 'all', the m = 2 lines that land exactly on m = 1 lines
+ * (blends).
  */
 import { wavelengthToPixel } from '../grating.ts';
 import { geometryOf, P_DRIVER, type ModelFit } from './model.ts';
@@ -26,7 +27,30 @@ const UNPARTNERED_WIDTH_RATIO = 0.8;
 
 /** Label leftover peaks as m = 2 lines when that explains them better than "spurious". */
 export function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, fit: ModelFit, dof: number): void {
-  const lines2 = predictLines(ctx, fit.parameters, 2);
+  for (const m of HIGHER_ORDERS) labelOrder(ctx, harmonic, order, fit, dof, m);
+}
+
+/** Diffraction orders tested on leftover peaks, most likely first. */
+const HIGHER_ORDERS = [2, 3] as const;
+
+/**
+ * Per diffraction order m: prior cost of the label and the largest spatial width relative to the
+ * m = 1 lines beside it, with and without the m = 1 partner seen (divergence ∝ ~1/√q: the m line
+ * of q beside the m = 1 line of q/m is about 1/√m as wide; common practice).
+ */
+const ORDER_RULES: Record<2 | 3, { cost: number; partnered: number; unpartnered: number }> = {
+  2: { cost: SECOND_ORDER_COST, partnered: PARTNERED_WIDTH_RATIO, unpartnered: UNPARTNERED_WIDTH_RATIO },
+  3: { cost: 2 * SECOND_ORDER_COST, partnered: 0.85, unpartnered: 0.7 },
+};
+
+function labelledInOrder(harmonic: Int32Array, order: Int8Array, q: number, m: number): boolean {
+  for (let i = 0; i < harmonic.length; i++) if (harmonic[i] === q && order[i] === m) return true;
+  return false;
+}
+
+function labelOrder(ctx: SearchContext, harmonic: Int32Array, order: Int8Array, fit: ModelFit, dof: number, m: 2 | 3): void {
+  const rules = ORDER_RULES[m];
+  const lines2 = predictLines(ctx, fit.parameters, m);
   if (lines2.pixel.length === 0) return;
   const s2 = Math.max(1, fit.chiSquarePosition / Math.max(dof, 1));
   const n = ctx.peaks.length;
@@ -53,12 +77,12 @@ export function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order
     if (j < 0) continue;
     const q = lines2.harmonic[j];
     if (used.has(q)) continue;
-    const lambda1 = (2 * fit.parameters[P_DRIVER]) / q;
+    const lambda1 = (m * fit.parameters[P_DRIVER]) / q;
     const sp = predictionSigma(ctx, fit, lambda1, s2);
     const variance = s2 * pk.sigmaPx * pk.sigmaPx + sp * sp + 0.02 * 0.02;
     const r = pk.pixel - lines2.pixel[j];
     if (Math.abs(r) > 0.2 * localSpacing(lines2, j)) continue;
-    const cost = (r * r) / variance + Math.log(2 * Math.PI * variance) + SECOND_ORDER_COST;
+    const cost = (r * r) / variance + Math.log(2 * Math.PI * variance) + rules.cost;
     if (!(cost < spurious)) continue;
     // A second-order line cannot outshine its own first-order line (gratings put far less into m = 2).
     const a1 = firstOrderArea.get(q);
@@ -67,6 +91,9 @@ export function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order
     // and a grating puts less into m = 2, so an m = 2 line whose m = 1 partner lies well inside the
     // detector and was not seen is no m = 2 line. Partners off the detector (shorter wavelength than
     // it covers) or at its edge prove nothing.
+    // An m = 3 line needs a lower order of its own harmonic seen (m = 1 or m = 2 are brighter): a
+    // stray line sitting on one of the dense m = 3 positions is otherwise too easy a coincidence.
+    if (m === 3 && a1 === undefined && !labelledInOrder(harmonic, order, q, 2)) continue;
     const partnerPx = partnerOnDetector.get(q);
     const margin = EDGE_FWHM * pk.fwhmPx;
     if (a1 === undefined && partnerPx !== undefined && partnerPx > margin && partnerPx < ctx.model.pixelCount - 1 - margin) continue;
@@ -78,10 +105,10 @@ export function labelSecondOrder(ctx: SearchContext, harmonic: Int32Array, order
     if (widthKnown) {
       const near = [...firstOrderWidth].sort((a, b) => Math.abs(a.px - pk.pixel) - Math.abs(b.px - pk.pixel)).slice(0, 2);
       const w1 = (near[0].w + near[1].w) / 2;
-      if (pk.spatialWidthPx > (a1 === undefined ? UNPARTNERED_WIDTH_RATIO : PARTNERED_WIDTH_RATIO) * w1) continue;
+      if (pk.spatialWidthPx > (a1 === undefined ? rules.unpartnered : rules.partnered) * w1) continue;
     }
     harmonic[i] = q;
-    order[i] = 2;
+    order[i] = m;
     used.add(q);
   }
 }
