@@ -37,7 +37,7 @@ const MAX_GROWN_SEEDS = 12;
 /** Slips of one seed pattern grown at most (the most plausible geometry of a pattern need not be the true slip when the walls are wide). */
 const MAX_GROWN_PER_PATTERN = 3;
 /** Extra seeds grown because they explain more strong peaks once m = 2 lines count (see searchCandidates). */
-const MAX_SECOND_ORDER_SEEDS = 2;
+const MAX_SECOND_ORDER_SEEDS = 3;
 
 /** Whether the nonzero labels run strictly one way along the pixels (down when wavelength increases with pixel). */
 function monotonicLabels(harmonic: Int32Array, wavelengthIncreasesWithPixel: boolean): boolean {
@@ -264,7 +264,9 @@ export function searchCandidates(ctx: SearchContext): Candidate[] {
   // decides between them and the rest.
   const bySecond = seeds
     .filter((s) => s.matches + s.matchesSecond > topMatches)
-    .sort((x, y) => y.matches + y.matchesSecond - (x.matches + x.matchesSecond) || y.matches - x.matches || x.cost - y.cost);
+    // On a tie, the seed whose m = 2 lines explain more: that is what this branch is for (a dense
+    // high-order reading hits as many strong peaks in m = 1 by coincidence).
+    .sort((x, y) => y.matches + y.matchesSecond - (x.matches + x.matchesSecond) || y.matchesSecond - x.matchesSecond || x.cost - y.cost);
   let grownSecond = 0;
   for (const seed of bySecond) {
     if (grownSecond >= MAX_SECOND_ORDER_SEEDS) break;
