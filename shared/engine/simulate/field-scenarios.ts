@@ -13,6 +13,7 @@
  * (class, seed, index) alone: drawn from its own stream, accepted on its expected lines
  * (expectedLines, no rendering) or redrawn from the same stream.
  */
+import { firstAccepted, photonsForPeak, resolvable, scenarioList, visibleFirstOrder, type Draft } from './drafts.ts';
 import { FILTER_EDGE_WINDOWS_EV } from './filter-windows.ts';
 import { HC_EV_NM } from '../constants.ts';
 import { EngineError } from '../errors.ts';
@@ -29,7 +30,6 @@ import {
 } from './field-ranges.ts';
 import { filterStackTransmission, steepestEdgeEv, type FilterTransmissionFn } from './filters.ts';
 import { createRandom, mixSeed, type Random } from './random.ts';
-import { expectedLines } from './render.ts';
 import type { SimFilter, SimLine, SimScenario, SimSpuriousPeak } from './types.ts';
 
 /** The field classes: those meant to be answerable first, then those whose right answer is ambiguous or a refusal. */
@@ -64,9 +64,10 @@ export interface GenerateFieldScenariosOptions {
 const FILTER_MATERIALS = Object.keys(FILTER_EDGE_WINDOWS_EV);
 
 const MAX_ATTEMPTS = 600;
+/** Adjacent visible first-order lines of a decidable field class lie at least this many line widths apart. */
+const FIELD_RESOLVABLE_WIDTHS = 3;
 /** Stream label of the field scenarios (the classic generator uses 7919 + index). */
 const FIELD_STREAM = 104_729;
-const FWHM_PER_SIGMA = 2 * Math.sqrt(2 * Math.LN2);
 
 interface Context {
   random: Random;
@@ -76,27 +77,6 @@ interface Context {
   index: number;
   className: FieldScenarioClass;
   filterTransmission?: FilterTransmissionFn;
-}
-
-interface Draft {
-  scenario: SimScenario;
-  accept: (lines: SimLine[]) => boolean;
-}
-
-/** Photons in a line whose peak pixel holds `peakCounts` counts (separable Gaussians). */
-function photonsForPeak(peakCounts: number, gain: number, lineFwhmPx: number, spatialFwhmPx: number): number {
-  return (peakCounts / gain) * 2 * Math.PI * (lineFwhmPx / FWHM_PER_SIGMA) * (spatialFwhmPx / FWHM_PER_SIGMA);
-}
-
-function visibleFirstOrder(lines: SimLine[]): SimLine[] {
-  return lines.filter((l) => l.visible && l.diffractionOrder === 1);
-}
-
-/** Adjacent visible first-order lines at least `factor` line widths apart. */
-function resolvable(lines: SimLine[], lineFwhmPx: number, factor = 3): boolean {
-  const v = visibleFirstOrder(lines);
-  for (let k = 1; k < v.length; k += 1) if (v[k].pixel - v[k - 1].pixel < factor * lineFwhmPx) return false;
-  return true;
 }
 
 /** Camera, noise and line-shape fields every class shares; classes override. */
@@ -356,7 +336,7 @@ function grazingDraft(c: Context): Draft | null {
     accept: (lines) => {
       const v = visibleFirstOrder(lines);
       if (v.length < minVisible || v.length > maxVisible) return false;
-      if (needResolvable && !resolvable(lines, base.lineFwhmPx)) return false;
+      if (needResolvable && !resolvable(lines, base.lineFwhmPx, FIELD_RESOLVABLE_WIDTHS)) return false;
       return accept(lines);
     },
   };
@@ -433,7 +413,7 @@ function normalIncidenceDraft(c: Context): Draft | null {
     parity: 'odd',
     envelope,
   };
-  return { scenario, accept: (lines) => visibleFirstOrder(lines).length >= 3 && resolvable(lines, base.lineFwhmPx) };
+  return { scenario, accept: (lines) => visibleFirstOrder(lines).length >= 3 && resolvable(lines, base.lineFwhmPx, FIELD_RESOLVABLE_WIDTHS) };
 }
 
 /**
@@ -446,24 +426,18 @@ export function generateFieldScenario(className: FieldScenarioClass, seed: numbe
   }
   const random = createRandom(mixSeed(seed, FIELD_STREAM + index));
   const cam = FIELD_RANGES.camera;
-  for (let attempt = 0; attempt < MAX_ATTEMPTS; attempt += 1) {
+  const draw = (): Draft | null => {
     const spectralLength = random.pick(cam.spectralPixels);
     const spatialLength = random.pick(cam.spatialPixels);
     const axisOption = options.spectralAxis ?? 'random';
     const spectralAxis = axisOption === 'random' ? (random.uniform() < 0.7 ? 'x' : 'y') : axisOption;
     const context: Context = { random, spectralLength, spatialLength, spectralAxis, index, className, filterTransmission: options.filterTransmission };
-    const draft = className === 'field-ni-vuv-low-orders' ? normalIncidenceDraft(context) : grazingDraft(context);
-    if (!draft) continue;
-    const { lines } = expectedLines(draft.scenario, { filterTransmission: options.filterTransmission });
-    if (draft.accept(lines)) return draft.scenario;
-  }
-  throw new EngineError('invalid_input', `No acceptable ${className} scenario in ${MAX_ATTEMPTS} draws (seed ${seed}, index ${index}).`);
+    return className === 'field-ni-vuv-low-orders' ? normalIncidenceDraft(context) : grazingDraft(context);
+  };
+  return firstAccepted(MAX_ATTEMPTS, draw, options.filterTransmission, `${className} scenario (seed ${seed}, index ${index})`);
 }
 
 /** `count` field scenarios from `seed`: scenario i has class classes[i mod n]; a prefix of a longer list with the same seed. */
 export function generateFieldScenarios(count: number, seed: number, options: GenerateFieldScenariosOptions = {}): SimScenario[] {
-  if (!Number.isInteger(count) || count < 0) throw new EngineError('invalid_input', `count must be a non-negative integer (got ${count}).`);
-  const classes = options.classes ?? FIELD_SCENARIO_CLASSES;
-  if (classes.length === 0) throw new EngineError('invalid_input', 'classes must name at least one field scenario class.');
-  return Array.from({ length: count }, (_, i) => generateFieldScenario(classes[i % classes.length], seed, i, options));
+  return scenarioList(count, options.classes ?? FIELD_SCENARIO_CLASSES, (className, i) => generateFieldScenario(className, seed, i, options), 'field scenario');
 }

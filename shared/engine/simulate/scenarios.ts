@@ -8,14 +8,14 @@
  * detector (expectedLines, no rendering) meet its class's conditions; otherwise it is redrawn
  * from the same stream, so the result is still a function of the seed alone.
  */
+import { firstAccepted, photonsForPeak, resolvable, scenarioList, visibleFirstOrder, type Draft } from './drafts.ts';
+import { betaDeg, detectorRangeEv } from './field-ranges.ts';
 import { FILTER_EDGE_WINDOWS_EV } from './filter-windows.ts';
 import { HC_EV_NM } from '../constants.ts';
 import { EngineError } from '../errors.ts';
-import { pixelToWavelengthNm } from '../grating.ts';
 import type { GratingGeometry, InstrumentProfile, Parity } from '../types.ts';
 import { steepestEdgeEv, type FilterTransmissionFn } from './filters.ts';
 import { createRandom, mixSeed, type Random } from './random.ts';
-import { expectedLines } from './render.ts';
 import type { SimFilter, SimLine, SimScenario } from './types.ts';
 
 const DEG = Math.PI / 180;
@@ -62,12 +62,8 @@ function maxEnergyEv(driverNm: number): number {
 }
 
 const MAX_ATTEMPTS = 400;
-
-interface Draft {
-  scenario: SimScenario;
-  /** Extra acceptance test for the class, on the expected (jitter-free) lines. */
-  accept: (lines: SimLine[]) => boolean;
-}
+/** Adjacent visible first-order lines of a decidable classic class lie at least this many line widths apart. */
+const CLASSIC_RESOLVABLE_WIDTHS = 4;
 
 interface Context {
   random: Random;
@@ -82,12 +78,6 @@ interface Context {
 /** Sign of the harmonic step the labelling could slip by: 2 for odd combs, 1 for all orders. */
 function orderStep(parity: Parity): number {
   return parity === 'odd' ? 2 : 1;
-}
-
-/** Photons in a line whose peak pixel holds `peakCounts` counts (separable Gaussians). */
-function photonsForPeak(peakCounts: number, gain: number, lineFwhmPx: number, spatialFwhmPx: number): number {
-  const sigmaRatio = 1 / (2 * Math.sqrt(2 * Math.LN2));
-  return (peakCounts / gain) * 2 * Math.PI * lineFwhmPx * sigmaRatio * spatialFwhmPx * sigmaRatio;
 }
 
 /** The realigned nominal profile: incidence ± 0.5°, distance ± 3 %, detector centre ± 3 % of the width. */
@@ -108,12 +98,6 @@ function nominalProfile(c: Context, g: GratingGeometry, name: string): Instrumen
   };
 }
 
-/** Diffraction angle β (deg) of first-order wavelength λ; NaN when no real angle exists. */
-function betaDeg(incidenceAngleDeg: number, grooveDensityPerMm: number, wavelengthNm: number): number {
-  const sinBeta = Math.sin(incidenceAngleDeg * DEG) - (wavelengthNm * grooveDensityPerMm) / 1e6;
-  return Math.abs(sinBeta) < 1 ? Math.asin(sinBeta) / DEG : Number.NaN;
-}
-
 /** A grazing-incidence flat-field geometry whose central ray carries first-order wavelength `centreNm`. */
 function grazingGeometry(c: Context, centreNm: number, long = false): GratingGeometry | null {
   const r = c.random;
@@ -131,14 +115,6 @@ function grazingGeometry(c: Context, centreNm: number, long = false): GratingGeo
     detectorAngleDeg: beta0,
     detectorTiltDeg: r.between(-8, 8),
   };
-}
-
-/** Energy range (eV) the detector sees in first order. */
-function detectorRangeEv(g: GratingGeometry, spectralLength: number): [number, number] {
-  const a = pixelToWavelengthNm(g, 0);
-  const b = pixelToWavelengthNm(g, spectralLength - 1);
-  if (!Number.isFinite(a) || !Number.isFinite(b)) return [Number.NaN, Number.NaN];
-  return [HC_EV_NM / Math.max(a, b), HC_EV_NM / Math.min(a, b)];
 }
 
 /** Noise, shape and camera settings shared by the classes; the class then overrides. */
@@ -170,17 +146,6 @@ function commonFields(c: Context, spatialReferenceHarmonic: number): Omit<SimSce
 
 function driverOf(r: Random, nominalNm: number, tolerancePercent: number): SimScenario['driver'] {
   return { nominalNm, tolerancePercent, effectiveNm: nominalNm * (1 - r.uniform() * (tolerancePercent / 100)) };
-}
-
-function visibleFirstOrder(lines: SimLine[]): SimLine[] {
-  return lines.filter((l) => l.visible && l.diffractionOrder === 1);
-}
-
-/** Adjacent visible first-order lines at least `factor` line widths apart (resolvable). */
-function resolvable(lines: SimLine[], lineFwhmPx: number, factor = 4): boolean {
-  const v = visibleFirstOrder(lines);
-  for (let k = 1; k < v.length; k += 1) if (v[k].pixel - v[k - 1].pixel < factor * lineFwhmPx) return false;
-  return true;
 }
 
 /** The driver tolerance a decidable comb allows: half the relative change of a one-step slip of the labelling. */
@@ -363,7 +328,7 @@ function grazingDraft(c: Context): Draft | null {
     accept: (lines) => {
       const v = visibleFirstOrder(lines);
       if (v.length < minVisible || v.length > 45) return false;
-      if (decidable && !resolvable(lines, lineFwhmPx)) return false;
+      if (decidable && !resolvable(lines, lineFwhmPx, CLASSIC_RESOLVABLE_WIDTHS)) return false;
       return accept(lines);
     },
   };
@@ -414,7 +379,7 @@ function normalIncidenceDraft(c: Context): Draft | null {
     parity: 'odd',
     envelope,
   };
-  return { scenario, accept: (lines) => visibleFirstOrder(lines).length >= 3 && resolvable(lines, base.lineFwhmPx) };
+  return { scenario, accept: (lines) => visibleFirstOrder(lines).length >= 3 && resolvable(lines, base.lineFwhmPx, CLASSIC_RESOLVABLE_WIDTHS) };
 }
 
 /**
@@ -427,19 +392,16 @@ export function generateScenario(className: ScenarioClass, seed: number, index =
   }
   const random = createRandom(mixSeed(seed, 7919 + index));
   const sizes = options.sizes ?? [[1024, 256], [2048, 512], [1024, 1024]];
-  for (let attempt = 0; attempt < MAX_ATTEMPTS; attempt += 1) {
+  const draw = (): Draft | null => {
     const [spectralLength, spatialLength] = random.pick(sizes);
     const axisOption = options.spectralAxis ?? 'random';
     const spectralAxis = axisOption === 'random' ? (random.uniform() < 0.7 ? 'x' : 'y') : axisOption;
     const depthOption = options.bitDepth ?? 16;
     const bitDepth = depthOption === 'random' ? (random.uniform() < 0.2 ? 'float' : 16) : depthOption;
     const context: Context = { random, spectralLength, spatialLength, spectralAxis, bitDepth, index, className };
-    const draft = className === 'ni-vuv-low-orders' ? normalIncidenceDraft(context) : grazingDraft(context);
-    if (!draft) continue;
-    const { lines } = expectedLines(draft.scenario, { filterTransmission: options.filterTransmission });
-    if (draft.accept(lines)) return draft.scenario;
-  }
-  throw new EngineError('invalid_input', `No acceptable ${className} scenario in ${MAX_ATTEMPTS} draws (seed ${seed}, index ${index}).`);
+    return className === 'ni-vuv-low-orders' ? normalIncidenceDraft(context) : grazingDraft(context);
+  };
+  return firstAccepted(MAX_ATTEMPTS, draw, options.filterTransmission, `${className} scenario (seed ${seed}, index ${index})`);
 }
 
 /**
@@ -447,8 +409,5 @@ export function generateScenario(className: ScenarioClass, seed: number, index =
  * the list is reproducible and a prefix of a longer list with the same seed.
  */
 export function generateScenarios(count: number, seed: number, options: GenerateScenariosOptions = {}): SimScenario[] {
-  if (!Number.isInteger(count) || count < 0) throw new EngineError('invalid_input', `count must be a non-negative integer (got ${count}).`);
-  const classes = options.classes ?? SCENARIO_CLASSES;
-  if (classes.length === 0) throw new EngineError('invalid_input', 'classes must name at least one scenario class.');
-  return Array.from({ length: count }, (_, i) => generateScenario(classes[i % classes.length], seed, i, options));
+  return scenarioList(count, options.classes ?? SCENARIO_CLASSES, (className, i) => generateScenario(className, seed, i, options), 'scenario');
 }

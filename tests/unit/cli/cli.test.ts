@@ -3,26 +3,13 @@
  * contract of the README ("Command line"). The frame comes from our simulator with known truth;
  * the wavelengths are checked against the grating equation the simulator used (λq = λ0/q).
  */
-import { execFile } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { orderly } from '../../support/run-cli.ts';
 import { driverPriorOf, encodeTiff, generateScenarios, simulateFrame } from '../../../shared/engine/simulate/index.ts';
 
-const run = promisify(execFile);
-const CLI = path.resolve('bin/orderly.mjs');
-
-async function orderly(args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  try {
-    const { stdout, stderr } = await run(process.execPath, [CLI, ...args], { maxBuffer: 64 * 2 ** 20 });
-    return { code: 0, stdout, stderr };
-  } catch (error) {
-    const e = error as { code: number; stdout: string; stderr: string };
-    return { code: e.code, stdout: e.stdout, stderr: e.stderr };
-  }
-}
 
 describe('orderly command line', () => {
   let dir: string;

@@ -9,29 +9,16 @@
  * inside the signal band, so a dark page paired with the wrong frame page would leave a stripe
  * (a false peak) behind and change the output.
  */
-import { execFile } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { orderly } from '../../support/run-cli.ts';
 import { HC_EV_NM } from '../../../shared/engine/constants.ts';
 import { encodeTiff, generateScenarios, simulateFrame, type SimTruth } from '../../../shared/engine/simulate/index.ts';
 import type { Frame } from '../../../shared/engine/types.ts';
 import { encodeTiffStack } from '../../support/tiff-stack.ts';
 
-const run = promisify(execFile);
-const CLI = path.resolve('bin/orderly.mjs');
-
-async function orderly(args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  try {
-    const { stdout, stderr } = await run(process.execPath, [CLI, ...args], { maxBuffer: 64 * 2 ** 20 });
-    return { code: 0, stdout, stderr };
-  } catch (error) {
-    const e = error as { code: number; stdout: string; stderr: string };
-    return { code: e.code, stdout: e.stdout, stderr: e.stderr };
-  }
-}
 
 const PEDESTAL = 100;
 const STRIPE_COUNTS = 3000;
