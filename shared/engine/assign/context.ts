@@ -135,6 +135,7 @@ export function prepare(peaks: Peak[], input: AssignInput): Prepared | string {
     knownPoints,
     knownPeaks,
     transmission,
+    filtered: input.transmission !== undefined || (input.filters ?? []).length > 0,
     pins,
     opaqueTransmission: opaqueTransmission(searchPeaks.reduce((m, p) => Math.max(m, p.snr), 0)),
   };

@@ -80,6 +80,7 @@ function envelopeAt(ctx: SearchContext, firstOrder: { q: number; a: number }[], 
  * envelope + the driver prior's cost beyond the fitted one. With an anchor λ0 is the fit's.
  */
 function envelopeCost(ctx: SearchContext, firstOrder: { q: number; a: number }[], lambda0: number): number {
+  if (!ctx.filtered) return 0;
   const atFit = envelopeAt(ctx, firstOrder, lambda0);
   if (ctx.anchored || firstOrder.length < 2) return atFit;
   const wall = ctx.model.walls[P_DRIVER];

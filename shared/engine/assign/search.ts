@@ -60,6 +60,8 @@ export interface SearchContext {
   knownPeaks: Map<number, { label: string; wavelengthNm: number; point: number }>;
   /** Filter stack transmission at a photon energy. */
   transmission: (energyEv: number) => number;
+  /** False when nothing is in the beam (transmission 1 everywhere): envelope terms are then 0. */
+  filtered: boolean;
   /** peak index → pinned harmonic (m = 1). */
   pins: Map<number, number>;
   /** Transmission below which no line of this frame can be detected (see opaqueTransmission). */
