@@ -94,8 +94,9 @@ export interface InstrumentProfile {
   detectorAngleDeg?: number;
   /**
    * Nominal tilt of the detector plane from perpendicular to the central ray, degrees. A
-   * flat-field spectrometer's focal plane (and so its camera) sits well off it. Absent: the
-   * assigner uses a default for the instrument kind and says so in its notes.
+   * flat-field spectrometer's focal plane (and so its camera) sits well off it. Positive when the
+   * long-wavelength end is farther from the grating. Absent: the assigner searches a band for the
+   * instrument kind (assign/priors.ts) and says so in its notes.
    */
   detectorTiltDeg?: number;
   /** Spectral pixel count, when known. */

@@ -34,9 +34,10 @@ export interface AssignInput {
   /** User-fixed orders: "the peak at this pixel is harmonic q" (first diffraction order). @default [] */
   pins?: { pixel: number; harmonic: number }[];
   /**
-   * Lines of known wavelength (first-order wavelength, nm). With `pixel` they are absolute
-   * anchors at that pixel (an absorption edge located on a continuum is passed this way); without,
-   * the nearest unexplained peak to the predicted position is taken if it matches. @default []
+   * Lines of known wavelength (first-order wavelength, nm) at a pixel: absolute anchors there (an
+   * absorption edge located on a continuum is passed this way). The peak at that pixel is kept out
+   * of the harmonic search unless its wavelength is λ0/q for an allowed q. A line without a pixel
+   * is ignored. @default []
    */
   knownLines?: { wavelengthNm: number; pixel?: number; pixelSigma?: number; label?: string }[];
   /** Realignment ranges. @default see RealignmentRanges */
