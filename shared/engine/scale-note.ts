@@ -15,7 +15,8 @@ function percent(relative: number): string {
   return `±${twoDigits(100 * relative)} %`;
 }
 
-function kindWords(anchors: readonly ScaleAnchor[]): string {
+/** "1 known line and 1 filter edge": what anchored the scale, by kind. */
+export function anchorKindWords(anchors: readonly ScaleAnchor[]): string {
   const lines = anchors.filter((a) => a.kind === 'known-line').length;
   const edges = anchors.length - lines;
   const parts: string[] = [];
@@ -43,7 +44,7 @@ export function describeAbsoluteScale(calibration: Calibration): string {
     const sigmas = anchorEnergySigmasEv(calibration, anchors).map((s) => `±${twoDigits(s)} eV`);
     const atLines = anchors.length === 1 ? `${sigmas[0]} at the ${anchors[0].kind === 'known-line' ? 'line' : 'edge'}` : `${sigmas.join(', ')} at them`;
     const bought = alone === undefined ? '' : `; the driver tolerance alone would leave ${percent(alone)}`;
-    return `Scale anchored by ${kindWords(anchors)} (${where}): ${atLines}, ${percent(calibration.scaleSigmaRelative)} of the scale (1σ)${bought}.`;
+    return `Scale anchored by ${anchorKindWords(anchors)} (${where}): ${atLines}, ${percent(calibration.scaleSigmaRelative)} of the scale (1σ)${bought}.`;
   }
   if (calibration.absoluteScale === 'anchored') {
     return `Scale anchored (${percent(calibration.scaleSigmaRelative)} of the scale, 1σ); this calibration does not list what anchored it.`;

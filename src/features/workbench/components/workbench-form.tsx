@@ -165,8 +165,8 @@ export function WorkbenchForm({ settings, onChange, onRun, running, darkFrames, 
       <div>
         <p className="text-sm font-medium text-slate-700">Known lines (a peak of known photon energy: an absolute anchor of the scale)</p>
         <p className="text-xs text-slate-500">
-          An emission or absorption line of known energy, or a harmonic measured elsewhere (E = q·hc/λ0), in first diffraction order. A pin fixes an order; only a known line fixes the
-          absolute scale. Use <em>Known energy…</em> in the peaks table to take a peak&apos;s pixel.
+          An emission or absorption line of known energy, or a harmonic measured elsewhere (E = q·hc/λ0), in first diffraction order. A pin fixes an order; a known line (or a filter edge
+          the engine locates on a continuum) fixes the absolute scale. Use <em>Known energy…</em> in the peaks table to take a peak&apos;s pixel.
         </p>
         <ul className="mt-1 flex flex-wrap gap-2" aria-label="Known lines">
           {settings.knownLines.length === 0 ? <li className="text-sm text-slate-500">none</li> : null}

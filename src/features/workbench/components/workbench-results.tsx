@@ -1,4 +1,5 @@
 import type { WorkbenchRun } from '../../../../shared/api/workbench.ts';
+import { anchorKindWords } from '../../../../shared/engine/scale-note.ts';
 import { Panel } from '@/components/page';
 import { withKnownLine, type KnownLine } from '../lib/known-lines.ts';
 import type { Pin } from '../lib/pins.ts';
@@ -70,7 +71,7 @@ export function WorkbenchResults({ run, lineoutCounts, onPins, onKnownLines }: W
           <Panel title="Map with uncertainty band">
             <MapPlot calibration={result.calibration} />
             <p className="mt-2 text-xs text-slate-500">
-              Absolute scale: {result.calibration.absoluteScale === 'anchored' ? `anchored by ${result.calibration.anchors?.length ?? 0} known line(s)` : 'driver tolerance only'} (±
+              Absolute scale: {result.calibration.absoluteScale === 'anchored' ? `anchored by ${anchorKindWords(result.calibration.anchors ?? [])}` : 'driver tolerance only'} (±
               {(result.calibration.scaleSigmaRelative * 100).toPrecision(2)} %, 1σ) · rms residual{' '}
               {(result.calibration.residualRmsNm * 1000).toFixed(1)} pm · model {result.calibration.model}
             </p>
